@@ -1,0 +1,2 @@
+export { computeObjectiveStatus } from "./objective-status";
+export type { ObjectiveStatus, ObjectiveStatusInput, ObjectiveStatusResult } from "./objective-status";

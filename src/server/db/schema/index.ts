@@ -1,0 +1,5 @@
+export * from "./enums";
+export * from "./facilities";
+export * from "./instruments";
+export * from "./stacks";
+export * from "./access";
