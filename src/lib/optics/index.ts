@@ -18,3 +18,80 @@ export {
   type RenderGibsonLanniVolumeOptions,
   type GibsonLanniVolume,
 } from "./render-gibson-lanni-volume";
+export { effectiveNa, type EffectiveNaResult } from "./effective-na";
+export { apertureHalfAngleDeg } from "./aperture-half-angle";
+export {
+  resolutionLimits,
+  twoPointMidpointRatio,
+  airyIntensity,
+  BESSEL_J1_FIRST_ZERO,
+  type ResolutionLimits,
+} from "./resolution-limits";
+export {
+  widefieldFwhm,
+  paraxialAxialWidths,
+  AIRY_FWHM_CONSTANT,
+  WIDEFIELD_AXIAL_CONSTANT,
+  type FwhmNm,
+} from "./widefield-fwhm";
+export {
+  confocalFwhm,
+  CONFOCAL_LATERAL_CONSTANT,
+  CONFOCAL_AXIAL_CONSTANT,
+  SMALL_PINHOLE_AU,
+  LARGE_PINHOLE_AU,
+  type ConfocalFwhm,
+} from "./confocal-fwhm";
+export { twoPhotonFwhm, ZIPFEL_FWHM_PER_OMEGA } from "./two-photon-fwhm";
+export {
+  zhangGaussianSigma,
+  zhangConfocalSigma,
+  FWHM_PER_SIGMA,
+  type GaussianSigmaNm,
+} from "./gaussian-psf-sigma";
+export {
+  beadEquivalentFwhmNm,
+  convolveBeadFwhmNm,
+  correctBeadFwhmNm,
+  BEAD_EQUIVALENT_FWHM_PER_DIAMETER,
+  type BeadLabelling,
+  type BeadCorrection,
+} from "./bead-size-correction";
+export {
+  theoreticalFwhm,
+  THEORETICAL_FWHM_VERSION,
+  type Modality,
+  type TheoreticalFwhmInput,
+  type TheoreticalFwhm,
+} from "./theoretical-fwhm";
+export { nyquistSampling, type NyquistSampling } from "./nyquist-sampling";
+export {
+  checkSampling,
+  MIN_PIXELS_ACROSS_LATERAL_FWHM,
+  MIN_PLANES_ACROSS_AXIAL_FWHM,
+  type SamplingVerdict,
+  type SamplingAxisCheck,
+  type SamplingCheck,
+} from "./check-sampling";
+export {
+  axialScalingFactors,
+  type AxialScalingFactors,
+  type NamedScalingFactor,
+} from "./axial-scaling-factors";
+export { createMonotoneInterpolator, type Interpolator } from "./monotone-interpolator";
+export {
+  findGibsonLanniFocus,
+  type FindGibsonLanniFocusOptions,
+  type GibsonLanniFocus,
+} from "./find-gibson-lanni-focus";
+export {
+  gibsonLanniDepthMetrics,
+  type GibsonLanniDepthMetrics,
+  type GibsonLanniDepthMetricsOptions,
+} from "./gibson-lanni-depth-metrics";
+export { predictDepthCurve } from "./predict-depth-curve";
+export {
+  makeNominalToActualDepth,
+  type MakeNominalToActualDepthOptions,
+  type NominalToActualDepth,
+} from "./make-nominal-to-actual-depth";

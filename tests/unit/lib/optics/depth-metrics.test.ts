@@ -1,0 +1,117 @@
+import { describe, it, expect } from "vitest";
+import {
+  createGibsonLanniModel,
+  findGibsonLanniFocus,
+  gibsonLanniDepthMetrics,
+  predictDepthCurve,
+  type GibsonLanniParams,
+} from "@/lib/optics";
+
+const oilToWater: GibsonLanniParams = { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333, coverslipRi: 1.518 };
+
+describe("findGibsonLanniFocus", () => {
+  it("finds the oil → water peak at 10 µm", () => {
+    const f = findGibsonLanniFocus(oilToWater, 10);
+    // Source: METHODS.md check #22 (Gibson & Lanni 1991 model, computed here with scipy): nominal 12.233 µm, I/I_ideal 0.3450.
+    expect(f.nominalFocusUm).toBeCloseToAbs(12.233, 0.005);
+    expect(f.peakRelative).toBeCloseToAbs(0.345, 0.001);
+    expect(f.converged).toBe(true);
+    expect(f.iterations).toBeGreaterThan(0);
+  });
+  it("reports non-convergence when the iteration cap is hit", () => {
+    const f = findGibsonLanniFocus(oilToWater, 10, { maxIterations: 2 });
+    expect(f.converged).toBe(false);
+    expect(f.reason).toMatch(/maxIterations/);
+  });
+  it("rejects a negative depth", () => {
+    expect(() => findGibsonLanniFocus(oilToWater, -1)).toThrow(/depthUm must be finite and ≥ 0, got -1/);
+  });
+});
+
+describe("gibsonLanniDepthMetrics: oil objective into water", () => {
+  const model = createGibsonLanniModel(oilToWater);
+  const rows = predictDepthCurve(model, [0, 5, 10, 20, 50]);
+
+  it("gives the depth-dependent ζ", () => {
+    // Source: METHODS.md check #23 (computed here; Hell 1993 ≈ 0.83 at NA 1.3, confirmed: search).
+    expect(rows[1].focalShiftFactor).toBeCloseToAbs(0.796, 0.002);
+    expect(rows[3].focalShiftFactor).toBeCloseToAbs(0.833, 0.002);
+    expect(rows[4].focalShiftFactor).toBeCloseToAbs(0.849, 0.002);
+    // Oil → water: ζ < 1 at every depth (METHODS §4.1, confirmed: search, Diel et al. 2020).
+    for (const r of rows) expect(r.focalShiftFactor).toBeLessThan(1);
+  });
+
+  it("gives the axial FWHM growth with depth", () => {
+    // Source: METHODS.md check #24 (computed here): 0.641 µm at 0 and 1.297 µm at 10 µm (nominal z).
+    expect(rows[0].axialFwhmUm).toBeCloseToAbs(0.641, 0.01);
+    expect(rows[2].axialFwhmUm).toBeCloseToAbs(1.297, 0.01);
+    for (let i = 1; i < rows.length; i++) expect(rows[i].axialFwhmUm).toBeGreaterThan(rows[i - 1].axialFwhmUm);
+  });
+
+  it("gives the peak loss with depth", () => {
+    // Source: METHODS.md §5 table (GL computed here): 0.521 / 0.345 / 0.231 / 0.118 at 5/10/20/50 µm.
+    expect(rows[1].peakRelative).toBeCloseToAbs(0.521, 0.003);
+    expect(rows[2].peakRelative).toBeCloseToAbs(0.345, 0.003);
+    expect(rows[3].peakRelative).toBeCloseToAbs(0.231, 0.003);
+    expect(rows[4].peakRelative).toBeCloseToAbs(0.118, 0.003);
+  });
+
+  it("puts the side lobes on the far side", () => {
+    // Source: METHODS.md check #25 (computed here): far/near = 0.295/0.012 at 10 µm; §8 table 0.377/0.010 at 20 µm.
+    expect(rows[2].sideLobeFar).toBeCloseToAbs(0.295, 0.01);
+    expect(rows[2].sideLobeNear).toBeCloseToAbs(0.012, 0.01);
+    expect(rows[3].sideLobeFar).toBeCloseToAbs(0.377, 0.01);
+    expect(rows[2].sideLobeAsymmetry).toBeGreaterThan(0);
+  });
+
+  it("has a lateral FWHM close to the Airy value at the coverslip", () => {
+    // Source: Airy FWHM 0.5145 λ/NA (METHODS §2.1, computed there); the GL in-focus PSF at z_p = 0 is an Airy pattern.
+    expect(rows[0].lateralFwhmUm).toBeCloseToAbs((0.5145 * 0.52) / 1.3, 0.001);
+    expect(rows[4].lateralFwhmUm).toBeGreaterThan(rows[0].lateralFwhmUm);
+  });
+});
+
+describe("gibsonLanniDepthMetrics: other pairs", () => {
+  it("air NA 0.95 → water: lobes flip to the near side, ζ > 1", () => {
+    const air = gibsonLanniDepthMetrics({ na: 0.95, wavelengthNm: 520, immersionRi: 1, sampleRi: 1.333, coverslipRi: 1.5255 }, 10);
+    // Source: METHODS.md check #25 (computed here): 0.032 far / 0.349 near.
+    expect(air.sideLobeFar).toBeCloseToAbs(0.032, 0.01);
+    expect(air.sideLobeNear).toBeCloseToAbs(0.349, 0.01);
+    // Source: METHODS.md §4.3 table (computed here): ζ(10 µm) = 1.525; §5 table peak 0.449.
+    expect(air.focalShiftFactor).toBeCloseToAbs(1.525, 0.003);
+    expect(air.peakRelative).toBeCloseToAbs(0.449, 0.003);
+  });
+
+  it("asymmetry flips sign when the mismatch is reversed", () => {
+    // Source: METHODS.md §8 rule (computed here with the scalar GL model): far lobes for n_s < n_i, near lobes for n_s > n_i.
+    const base = { na: 1.2, wavelengthNm: 520, immersionRi: 1.4 };
+    const lower = gibsonLanniDepthMetrics({ ...base, sampleRi: 1.36 }, 15);
+    const higher = gibsonLanniDepthMetrics({ ...base, sampleRi: 1.44 }, 15);
+    expect(lower.sideLobeAsymmetry).toBeGreaterThan(0.02);
+    expect(higher.sideLobeAsymmetry).toBeLessThan(-0.02);
+    expect(lower.focalShiftFactor).toBeLessThan(1);
+    expect(higher.focalShiftFactor).toBeGreaterThan(1);
+  });
+
+  it("water NA 1.2 → 1.38 and a coverslip error on a water lens", () => {
+    // Source: METHODS.md check #32 (computed here): peak 0.666 at 20 µm.
+    expect(gibsonLanniDepthMetrics({ na: 1.2, wavelengthNm: 520, immersionRi: 1.333, sampleRi: 1.38 }, 20, { lateral: false }).peakRelative).toBeCloseToAbs(0.666, 0.003);
+    // Source: METHODS.md check #33 (computed here): coverslip 175 instead of 170 µm, n_g 1.5255, z_p 10 µm → peak 0.8545.
+    const cs = gibsonLanniDepthMetrics(
+      { na: 1.2, wavelengthNm: 520, immersionRi: 1.333, sampleRi: 1.333, coverslipRi: 1.5255, coverslipThicknessUm: 175, coverslipThicknessDesignUm: 170 },
+      10,
+      { lateral: false, sideLobes: false },
+    );
+    expect(cs.peakRelative).toBeCloseToAbs(0.8545, 0.002);
+    expect(Number.isNaN(cs.lateralFwhmUm)).toBe(true);
+  });
+
+  it("matched pair: ζ = 1, symmetric first lobes of 0.047", () => {
+    const m = gibsonLanniDepthMetrics({ ...oilToWater, sampleRi: 1.518 }, 10);
+    // Source: METHODS.md §4.3 and §8 tables (computed here): matched → ζ 1.000 and 0.047/0.047.
+    expect(m.focalShiftFactor).toBeCloseToAbs(1, 1e-4);
+    expect(m.sideLobeFar).toBeCloseToAbs(0.047, 0.01);
+    expect(m.sideLobeNear).toBeCloseToAbs(0.047, 0.01);
+    expect(m.peakRelative).toBeCloseToAbs(1, 1e-6);
+  });
+});
