@@ -8,6 +8,7 @@ import { TiffInputError } from "./tiff-input-error";
  *
  * @param bytes - the decoded rows of one strip or tile, `rows × width` samples, already in the
  *   machine's byte order for predictor 2 (after any byte swap), in file layout for predictor 3
+ *   (whose result is in the machine's order for little-endian files, swapped for big-endian ones)
  * @param predictor - 1 (none), 2 or 3
  * @param width - samples per row (the tile width for tiles)
  * @param rows - number of rows
@@ -66,7 +67,9 @@ export function applyPredictor(
     for (let r = 0; r < rows; r++) {
       const base = r * rowBytes;
       for (let i = base + 1; i < base + rowBytes; i++) bytes[i] = (bytes[i] + bytes[i - 1]) & 0xff;
-      // Byte planes are most-significant first; write little-endian floats.
+      // Byte planes: for a little-endian file the first plane is the most significant byte; the
+      // result is written little-endian. For a big-endian file this yields byte-swapped floats,
+      // which the caller swaps back (matches libtiff's output, tested with tiffcp -B).
       for (let x = 0; x < width; x++) {
         const o = base + x * 4;
         out[o + 3] = bytes[base + x];

@@ -24,8 +24,8 @@ import { TiffInputError } from "./tiff-input-error";
  *
  * Notes: stripped pages decode straight into `out` (a strip is a contiguous run of rows); tiled
  * pages decode each tile into `scratch` and copy the rows that lie inside the image.
- * Byte swapping happens before predictor 2 (the predictor works on sample values); predictor 3
- * works on bytes and produces native order itself.
+ * Byte swapping happens before predictor 2 (the predictor works on sample values) and after
+ * predictor 3 (which reassembles the float bytes in the file's byte order).
  * References: TIFF 6.0 specification, sections 3 (strips), 14 (predictor), 15 (tiles).
  *
  * @example
@@ -41,7 +41,10 @@ export function decodePage(
 ): Uint8Array | null {
   const { width, height, bytesPerSample: bps, offsets, byteCounts } = page;
   const rowBytes = width * bps;
+  // Predictor 2 works on sample values, so swap first; predictor 3 reassembles bytes in the
+  // file's byte order (checked against libtiff's tiffcp -B output), so swap after it.
   const swap = !littleEndian && bps > 1 && page.predictor !== 3;
+  const swapAfter = !littleEndian && bps > 1 && page.predictor === 3;
   if (page.tileWidth === 0) {
     const rps = page.rowsPerStrip;
     for (let s = 0; s < offsets.length; s++) {
@@ -54,6 +57,7 @@ export function decodePage(
       if (page.predictor !== 1) {
         const restored = applyPredictor(dst, page.predictor, width, rows, bps);
         if (restored !== dst) dst.set(restored);
+        if (swapAfter) swapBytes(dst, bps);
       }
     }
     return scratch;
@@ -72,6 +76,7 @@ export function decodePage(
     if (swap) swapBytes(buf, bps);
     let tile = buf;
     if (page.predictor !== 1) tile = applyPredictor(buf, page.predictor, tw, th, bps);
+    if (swapAfter) swapBytes(tile, bps);
     const copyBytes = Math.min(tw, width - tx) * bps;
     const rows = Math.min(th, height - ty);
     for (let r = 0; r < rows; r++) {
