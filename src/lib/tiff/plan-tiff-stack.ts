@@ -4,7 +4,7 @@
  * metadata, selects the pages of one channel and frame, and checks limits — all before any
  * pixel buffer is allocated.
  */
-import { fromArrayBuffer } from "geotiff";
+import { GeoTIFF } from "geotiff";
 import type { StackDtype } from "./stack";
 import { parseImageJDescription } from "./parse-imagej-description";
 import { parseOmeXml, type OmeMetadata } from "./parse-ome-xml";
@@ -91,12 +91,9 @@ export async function planTiffStack(bytes: Uint8Array, options: TiffReadOptions 
   const { littleEndian, ifds } = structure;
   const warnings: TiffWarning[] = [];
 
-  let tiff: Awaited<ReturnType<typeof fromArrayBuffer>>;
+  let tiff: GeoTIFF;
   try {
-    const ab = bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.buffer instanceof ArrayBuffer
-      ? bytes.buffer
-      : bytes.slice().buffer;
-    tiff = await fromArrayBuffer(ab);
+    tiff = await GeoTIFF.fromSource(byteSource(bytes) as unknown as Parameters<typeof GeoTIFF.fromSource>[0]);
   } catch (e) {
     throw mapForeign(e, "the TIFF header");
   }
@@ -305,7 +302,7 @@ interface PageTags {
   resolutionUnit: number;
 }
 
-async function readPageTags(tiff: Awaited<ReturnType<typeof fromArrayBuffer>>, i: number, structure: TiffStructure, bytes: Uint8Array): Promise<PageTags> {
+async function readPageTags(tiff: GeoTIFF, i: number, structure: TiffStructure, bytes: Uint8Array): Promise<PageTags> {
   const entries = structure.ifds[i].entries;
   try {
     const image = await tiff.getImage(i);
@@ -457,6 +454,25 @@ function rational(v: unknown): number | null {
 
 function isArrayLike(v: unknown): v is ArrayLike<number> {
   return v !== null && typeof v === "object" && typeof (v as { length?: unknown }).length === "number";
+}
+
+/**
+ * A geotiff data source over our bytes that copies only the ranges geotiff asks for (IFDs and
+ * tag values), so a Uint8Array view into a larger buffer is never copied whole.
+ */
+function byteSource(bytes: Uint8Array) {
+  return {
+    fileSize: bytes.byteLength,
+    fetch: async (slices: Array<{ offset: number; length: number }>): Promise<ArrayBuffer[]> =>
+      slices.map(({ offset, length }) => {
+        const start = Math.min(Math.max(0, offset), bytes.byteLength);
+        const end = Math.min(bytes.byteLength, start + Math.max(0, length));
+        const copy = new Uint8Array(end - start);
+        copy.set(bytes.subarray(start, end));
+        return copy.buffer;
+      }),
+    close: async (): Promise<void> => {},
+  };
 }
 
 /** Map anything thrown by geotiff (or a bug of ours) to a TiffInputError. */
