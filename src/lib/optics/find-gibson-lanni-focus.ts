@@ -97,10 +97,10 @@ const GOLDEN = (Math.sqrt(5) - 1) / 2;
  * Nominal focus position of the on-axis intensity maximum of the GL PSF for a source at a given
  * actual depth (the "full wave optics" focal shift of METHODS §4.1).
  *
- * Notes: coarse-to-fine. A scan with step (matched axial FWHM)/4 covers the interval between the
+ * Notes: coarse-to-fine. A scan with step (matched axial FWHM)/2 covers the interval between the
  * paraxial focus n_i(d/n_s + layer term) and the RMS-optimal defocus, widened by 25 % of its
- * width plus three matched axial FWHM on each side; the best sample is refined by golden-section
- * search on ±1 step. The maximum found is the global one within that window.
+ * width plus three matched axial FWHM on each side; the three highest sampled local maxima are
+ * refined by golden-section search on ±1 step and the best is kept (global within the window).
  *
  * References: Hell, Reiner, Cremer & Stelzer, J Microsc 169:391–405 (1993); METHODS.md §3–4.3
  * (check #22: oil NA 1.3 → water, z_p 10 µm → nominal 12.233 µm, peak 0.3450).
@@ -128,46 +128,34 @@ export function findGibsonLanniFocus(
   const lo = Math.min(paraxialUm, rmsOptimalUm) - 0.25 * width - 3 * fwhm0;
   const hi = Math.max(paraxialUm, rmsOptimalUm) + 0.25 * width + 3 * fwhm0;
   const evaluator = makeAxialEvaluator(model, depthUm, lo, hi);
-  const step = fwhm0 / 4;
+  // Coarse scan at half the matched axial FWHM (every lobe is at least that wide), then refine the
+  // three highest sampled local maxima, so a side lobe sampled near its top cannot win by aliasing.
+  const step = fwhm0 / 2;
   const count = Math.ceil((hi - lo) / step) + 1;
-  let bestX = lo;
-  let bestI = -1;
+  const xs = new Float64Array(count);
+  const vs = new Float64Array(count);
   for (let i = 0; i < count; i++) {
-    const x = lo + i * step;
-    const v = evaluator.at(x);
-    if (v > bestI) {
-      bestI = v;
-      bestX = x;
-    }
+    xs[i] = lo + i * step;
+    vs[i] = evaluator.at(xs[i]);
   }
-  // Golden-section maximisation on [bestX − step, bestX + step].
-  let a = bestX - step;
-  let b = bestX + step;
-  let c = b - GOLDEN * (b - a);
-  let d = a + GOLDEN * (b - a);
-  let fc = evaluator.at(c);
-  let fd = evaluator.at(d);
+  const candidates: number[] = [];
+  for (let i = 0; i < count; i++) {
+    if ((i === 0 || vs[i] >= vs[i - 1]) && (i === count - 1 || vs[i] >= vs[i + 1])) candidates.push(i);
+  }
+  candidates.sort((p, q) => vs[q] - vs[p]);
+  let nominalFocusUm = xs[candidates[0]];
+  let peakRelative = vs[candidates[0]];
   let iterations = 0;
-  while (b - a > toleranceUm && iterations < maxIterations) {
-    iterations++;
-    if (fc > fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - GOLDEN * (b - a);
-      fc = evaluator.at(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + GOLDEN * (b - a);
-      fd = evaluator.at(d);
+  let converged = true;
+  for (const index of candidates.slice(0, 3)) {
+    const refined = goldenMaximum(evaluator.at, xs[index] - step, xs[index] + step, toleranceUm, maxIterations);
+    iterations += refined.iterations;
+    converged &&= refined.converged;
+    if (refined.value > peakRelative) {
+      peakRelative = refined.value;
+      nominalFocusUm = refined.x;
     }
   }
-  const converged = b - a <= toleranceUm;
-  const x = (a + b) / 2;
-  const fx = evaluator.at(x);
-  const [nominalFocusUm, peakRelative] = fx >= bestI ? [x, fx] : [bestX, bestI];
   return {
     nominalFocusUm,
     peakRelative,
@@ -176,4 +164,37 @@ export function findGibsonLanniFocus(
     converged,
     reason: converged ? "bracket below tolerance" : "maxIterations reached",
   };
+}
+
+/** Golden-section maximisation of f on [a, b] (internal). */
+function goldenMaximum(
+  f: (x: number) => number,
+  a: number,
+  b: number,
+  tolerance: number,
+  maxIterations: number,
+): { x: number; value: number; iterations: number; converged: boolean } {
+  let c = b - GOLDEN * (b - a);
+  let d = a + GOLDEN * (b - a);
+  let fc = f(c);
+  let fd = f(d);
+  let iterations = 0;
+  while (b - a > tolerance && iterations < maxIterations) {
+    iterations++;
+    if (fc > fd) {
+      b = d;
+      d = c;
+      fd = fc;
+      c = b - GOLDEN * (b - a);
+      fc = f(c);
+    } else {
+      a = c;
+      c = d;
+      fc = fd;
+      d = a + GOLDEN * (b - a);
+      fd = f(d);
+    }
+  }
+  const x = (a + b) / 2;
+  return { x, value: f(x), iterations, converged: b - a <= tolerance };
 }

@@ -83,14 +83,32 @@ describe("gibsonLanniDepthMetrics: other pairs", () => {
   });
 
   it("asymmetry flips sign when the mismatch is reversed", () => {
-    // Source: METHODS.md §8 rule (computed here with the scalar GL model): far lobes for n_s < n_i, near lobes for n_s > n_i.
-    const base = { na: 1.2, wavelengthNm: 520, immersionRi: 1.4 };
-    const lower = gibsonLanniDepthMetrics({ ...base, sampleRi: 1.36 }, 15);
-    const higher = gibsonLanniDepthMetrics({ ...base, sampleRi: 1.44 }, 15);
-    expect(lower.sideLobeAsymmetry).toBeGreaterThan(0.02);
-    expect(higher.sideLobeAsymmetry).toBeLessThan(-0.02);
+    const base = { na: 1.2, wavelengthNm: 520 };
+    const higher = gibsonLanniDepthMetrics({ ...base, immersionRi: 1.333, sampleRi: 1.38 }, 20);
+    // Source: METHODS.md §8 table (computed here with the scalar GL model): water NA 1.2 → 1.38 at 20 µm, 0.018 far / 0.163 near.
+    expect(higher.sideLobeFar).toBeCloseToAbs(0.018, 0.01);
+    expect(higher.sideLobeNear).toBeCloseToAbs(0.163, 0.01);
+    // Reversed pair (design immersion 1.38 into water): the lobes must move to the far side (METHODS §8 rule).
+    const lower = gibsonLanniDepthMetrics({ ...base, immersionRi: 1.38, sampleRi: 1.333 }, 20);
+    expect(higher.sideLobeAsymmetry).toBeLessThan(-0.1);
+    expect(lower.sideLobeAsymmetry).toBeGreaterThan(0.1);
     expect(lower.focalShiftFactor).toBeLessThan(1);
     expect(higher.focalShiftFactor).toBeGreaterThan(1);
+  });
+
+  it("reproduces the other METHODS §8 side-lobe rows", () => {
+    // Source: METHODS.md §8 table (computed here): oil NA 1.4 → 1.45 at 10 µm 0.202/0.017; silicone NA 1.3 → 1.38 at 20 µm 0.176/0.020.
+    const oil = gibsonLanniDepthMetrics({ na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.45 }, 10, { lateral: false });
+    expect(oil.sideLobeFar).toBeCloseToAbs(0.202, 0.01);
+    expect(oil.sideLobeNear).toBeCloseToAbs(0.017, 0.01);
+    const silicone = gibsonLanniDepthMetrics({ na: 1.3, wavelengthNm: 520, immersionRi: 1.406, sampleRi: 1.38 }, 20, { lateral: false });
+    expect(silicone.sideLobeFar).toBeCloseToAbs(0.176, 0.01);
+    expect(silicone.sideLobeNear).toBeCloseToAbs(0.02, 0.01);
+    // Source: METHODS.md §4.3 and §5 tables (computed here): ζ 0.917 / 0.961, peak 0.554 / 0.633.
+    expect(oil.focalShiftFactor).toBeCloseToAbs(0.917, 0.002);
+    expect(silicone.focalShiftFactor).toBeCloseToAbs(0.961, 0.002);
+    expect(oil.peakRelative).toBeCloseToAbs(0.554, 0.003);
+    expect(silicone.peakRelative).toBeCloseToAbs(0.633, 0.003);
   });
 
   it("water NA 1.2 → 1.38 and a coverslip error on a water lens", () => {
