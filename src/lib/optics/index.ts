@@ -95,3 +95,25 @@ export {
   type MakeNominalToActualDepthOptions,
   type NominalToActualDepth,
 } from "./make-nominal-to-actual-depth";
+export type {
+  Medium,
+  CustomMedium,
+  MediumCategory,
+  EvidenceTag,
+  Dispersion,
+} from "./media/medium-types";
+export {
+  listMedia,
+  getMedium,
+  glycerolWaterMedium,
+  tdeWaterMedium,
+  sucroseSolutionMedium,
+  GLYCEROL_WATER_TABLE,
+  SUCROSE_TABLE,
+  SODIUM_D_NM,
+  MERCURY_E_NM,
+} from "./media/media-catalog";
+export { refractiveIndex, type RefractiveIndexConditions } from "./media/refractive-index";
+export { waterRefractiveIndexVacuum, waterDensityKgM3, WATER_DENSITY_TABLE } from "./media/water-iapws";
+export { airRefractiveIndex } from "./media/air-refractive-index";
+export { cauchyFromAbbe, type CauchyTwoTerm } from "./media/cauchy-from-abbe";
