@@ -30,6 +30,9 @@ const nextConfig = {
   serverExternalPackages: ["pg", "pg-boss", "bcryptjs", "geotiff"],
   poweredByHeader: false,
   experimental: { authInterrupts: true },
+  // `npm test` runs tsc over the whole repository (tests, fixtures, scripts) as its
+  // own gate; the build does not repeat it.
+  typescript: { ignoreBuildErrors: true },
   async headers() {
     return [{ source: "/:path*", headers: securityHeaders }];
   },

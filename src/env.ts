@@ -21,7 +21,14 @@ const envSchema = z.object({
   S3_SECRET_ACCESS_KEY: optionalString,
   SMTP_URL: optionalString,
   MAIL_FROM: z.preprocess(emptyAsUndefined, z.string().default("Beadbench <beadbench@localhost>")),
-  MAX_UPLOAD_BYTES: z.preprocess(emptyAsUndefined, z.coerce.number().int().positive().default(4 * 1024 ** 3)),
+  MAX_UPLOAD_BYTES: z.preprocess(
+    emptyAsUndefined,
+    z.coerce
+      .number()
+      .int()
+      .positive()
+      .default(4 * 1024 ** 3),
+  ),
   MAX_STACK_VOXELS: z.preprocess(emptyAsUndefined, z.coerce.number().int().positive().default(400_000_000)),
 });
 

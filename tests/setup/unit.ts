@@ -13,7 +13,8 @@ expect.extend({
 });
 
 declare module "vitest" {
-  interface Matchers<T = unknown> {
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- must match vitest's declaration
+  interface Matchers<T = any> {
     toBeCloseToAbs(expected: number, tolerance: number): T;
   }
 }

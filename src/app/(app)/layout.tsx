@@ -1,7 +1,7 @@
 import type { ReactNode } from "react";
 import { requirePageActor } from "@/server/auth/current-actor";
 import { navigationFor } from "@/server/auth/permissions";
-import { AppHeader } from "@/components/app-header";
+import { AppHeader } from "./_components/app-header";
 
 export default async function AppLayout({ children }: { children: ReactNode }) {
   const ctx = await requirePageActor();

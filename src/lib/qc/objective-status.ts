@@ -44,10 +44,24 @@ function fmt(x: number): string {
 
 /** Decide an objective's status; see the module notes for the order of the rules. */
 export function computeObjectiveStatus(input: ObjectiveStatusInput): ObjectiveStatusResult {
-  const { now, lastCheckAt, checkIntervalDays, latestRatios, limits, statistical, implausiblyGoodRatio = 0.8 } = input;
-  if (!(checkIntervalDays > 0)) throw new RangeError(`checkIntervalDays must be > 0, got ${checkIntervalDays}`);
+  const {
+    now,
+    lastCheckAt,
+    checkIntervalDays,
+    latestRatios,
+    limits,
+    statistical,
+    implausiblyGoodRatio = 0.8,
+  } = input;
+  if (!(checkIntervalDays > 0))
+    throw new RangeError(`checkIntervalDays must be > 0, got ${checkIntervalDays}`);
   if (!lastCheckAt) {
-    return { status: "no data", reason: "No bead check has been recorded for this objective yet.", nextDueAt: null, urgency: 3 };
+    return {
+      status: "no data",
+      reason: "No bead check has been recorded for this objective yet.",
+      nextDueAt: null,
+      urgency: 3,
+    };
   }
   const nextDueAt = new Date(lastCheckAt.getTime() + checkIntervalDays * DAY_MS);
   const breaches: string[] = [];
@@ -83,8 +97,12 @@ export function computeObjectiveStatus(input: ObjectiveStatusInput): ObjectiveSt
     };
   }
   const low = [
-    latestRatios?.lateral != null && latestRatios.lateral < implausiblyGoodRatio ? `lateral ${fmt(latestRatios.lateral)}` : null,
-    latestRatios?.axial != null && latestRatios.axial < implausiblyGoodRatio ? `axial ${fmt(latestRatios.axial)}` : null,
+    latestRatios?.lateral != null && latestRatios.lateral < implausiblyGoodRatio
+      ? `lateral ${fmt(latestRatios.lateral)}`
+      : null,
+    latestRatios?.axial != null && latestRatios.axial < implausiblyGoodRatio
+      ? `axial ${fmt(latestRatios.axial)}`
+      : null,
   ].filter(Boolean);
   if (low.length) {
     return {

@@ -167,7 +167,20 @@ export function stopPostgres(pg) {
 export function psql(pg, sql, db = "postgres") {
   const r = spawnSync(
     path.join(pg.bin, "psql"),
-    ["-h", "127.0.0.1", "-p", String(pg.port), "-U", "postgres", "-d", db, "-v", "ON_ERROR_STOP=1", "-tAc", sql],
+    [
+      "-h",
+      "127.0.0.1",
+      "-p",
+      String(pg.port),
+      "-U",
+      "postgres",
+      "-d",
+      db,
+      "-v",
+      "ON_ERROR_STOP=1",
+      "-tAc",
+      sql,
+    ],
     { encoding: "utf8" },
   );
   if (r.status !== 0) throw new Error(`psql failed: ${r.stderr}`);

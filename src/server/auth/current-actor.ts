@@ -42,7 +42,8 @@ export async function requireApiActor(): Promise<Actor> {
   const session = await auth();
   const userId = session?.user?.id;
   if (!userId) {
-    if (await hasSessionCookie()) throw new AppError("session_expired", "Your session has expired. Sign in again.");
+    if (await hasSessionCookie())
+      throw new AppError("session_expired", "Your session has expired. Sign in again.");
     throw new AppError("unauthenticated", "Sign in or send an API token.");
   }
   const jar = await cookies();

@@ -15,7 +15,11 @@ const globalForDb = globalThis as unknown as { beadbenchPool?: Pool; beadbenchDb
 
 export function getPool(): Pool {
   if (!globalForDb.beadbenchPool) {
-    const pool = new Pool({ connectionString: getEnv().DATABASE_URL, max: 10, connectionTimeoutMillis: 5000 });
+    const pool = new Pool({
+      connectionString: getEnv().DATABASE_URL,
+      max: 10,
+      connectionTimeoutMillis: 5000,
+    });
     // A dropped connection (e.g. the server restarting) must not crash the process;
     // the next query gets a fresh client.
     pool.on("error", () => {});

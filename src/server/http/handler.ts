@@ -21,7 +21,8 @@ export function errorResponse(err: unknown): NextResponse {
   }
   // Unknown errors: generic message out, details only in the server log.
   console.error("[api] unexpected error:", err instanceof Error ? `${err.name}: ${err.message}` : err);
-  const dbDown = err instanceof Error && /ECONNREFUSED|Connection terminated|connect ETIMEDOUT/.test(err.message);
+  const dbDown =
+    err instanceof Error && /ECONNREFUSED|Connection terminated|connect ETIMEDOUT/.test(err.message);
   return NextResponse.json(
     {
       error: dbDown

@@ -32,7 +32,11 @@ export async function actorForUser(
   return {
     actor: { userId, facilityId: chosen.facilityId, role: chosen.role, via },
     user: { id: user.id, name: user.name, email: user.email },
-    facilities: memberships.map((m) => ({ facilityId: m.facilityId, facilityName: m.facilityName, role: m.role })),
+    facilities: memberships.map((m) => ({
+      facilityId: m.facilityId,
+      facilityName: m.facilityName,
+      role: m.role,
+    })),
     facilityName: chosen.facilityName,
   };
 }

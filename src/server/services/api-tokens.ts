@@ -22,7 +22,12 @@ export async function createApiToken(db: Db, actor: Actor, input: { name: string
         prefix: secret.slice(0, 7),
         expiresAt,
       })
-      .returning({ id: apiTokens.id, name: apiTokens.name, prefix: apiTokens.prefix, expiresAt: apiTokens.expiresAt });
+      .returning({
+        id: apiTokens.id,
+        name: apiTokens.name,
+        prefix: apiTokens.prefix,
+        expiresAt: apiTokens.expiresAt,
+      });
     await insertAuditEntry(tx, {
       facilityId: actor.facilityId,
       userId: actor.userId,
@@ -45,7 +50,13 @@ export async function listApiTokens(db: Db, actor: Actor) {
       createdAt: apiTokens.createdAt,
     })
     .from(apiTokens)
-    .where(and(eq(apiTokens.userId, actor.userId), eq(apiTokens.facilityId, actor.facilityId), isNull(apiTokens.revokedAt)))
+    .where(
+      and(
+        eq(apiTokens.userId, actor.userId),
+        eq(apiTokens.facilityId, actor.facilityId),
+        isNull(apiTokens.revokedAt),
+      ),
+    )
     .orderBy(desc(apiTokens.createdAt));
 }
 

@@ -24,7 +24,11 @@ import {
 export async function visibleInstrumentIds(db: Db, actor: Actor): Promise<string[] | undefined> {
   const grant = requirePermission(actor, "instruments.read");
   if (grant === "assigned") {
-    return listAssignedInstrumentIds(db, { facilityId: actor.facilityId, engineerId: actor.userId, at: new Date() });
+    return listAssignedInstrumentIds(db, {
+      facilityId: actor.facilityId,
+      engineerId: actor.userId,
+      at: new Date(),
+    });
   }
   return undefined;
 }
@@ -67,7 +71,8 @@ export async function listObjectives(db: Db, actor: Actor) {
 export async function getObjective(db: Db, actor: Actor, id: string) {
   const onlyIds = await visibleInstrumentIds(db, actor);
   const row = await getObjectiveById(db, { facilityId: actor.facilityId, id });
-  if (!row || (onlyIds && (!row.instrumentId || !onlyIds.includes(row.instrumentId)))) throw notFound("Objective");
+  if (!row || (onlyIds && (!row.instrumentId || !onlyIds.includes(row.instrumentId))))
+    throw notFound("Objective");
   return row;
 }
 

@@ -25,7 +25,11 @@ export async function verifyCredentials(db: Db, email: string, password: string)
   const user = await getUserByEmail(db, { email });
   if (!user || !user.passwordHash) return { ok: false, reason: "unknown_email" };
   if (user.lockedUntil && user.lockedUntil.getTime() > Date.now()) {
-    return { ok: false, reason: "locked", minutesLeft: Math.ceil((user.lockedUntil.getTime() - Date.now()) / 60000) };
+    return {
+      ok: false,
+      reason: "locked",
+      minutesLeft: Math.ceil((user.lockedUntil.getTime() - Date.now()) / 60000),
+    };
   }
   const matches = await bcrypt.compare(password, user.passwordHash);
   if (!matches) {

@@ -1,7 +1,7 @@
 import Link from "next/link";
 import { signOutAction } from "@/app/(auth)/sign-in/actions";
 import { switchFacilityAction } from "@/app/(app)/actions";
-import { NavLinks } from "./nav-links";
+import { NavLinks } from "@/components/nav-links";
 
 interface Props {
   facilityName: string;

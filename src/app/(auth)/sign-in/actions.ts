@@ -10,9 +10,12 @@ export interface SignInState {
 }
 
 const MESSAGES: Record<string, string> = {
-  unknown_email: "No account uses this e-mail address. Check the spelling, or ask your facility admin for an invitation.",
-  wrong_password: "The password is not right for this account. After 5 failed attempts the account is locked for 15 minutes.",
-  locked: "Too many failed attempts: this account is locked for 15 minutes. Try again later or ask your facility admin.",
+  unknown_email:
+    "No account uses this e-mail address. Check the spelling, or ask your facility admin for an invitation.",
+  wrong_password:
+    "The password is not right for this account. After 5 failed attempts the account is locked for 15 minutes.",
+  locked:
+    "Too many failed attempts: this account is locked for 15 minutes. Try again later or ask your facility admin.",
   no_facility: "Your account does not belong to any facility yet. Ask your facility admin to add you.",
   invalid_input: "Enter a valid e-mail address and your password.",
 };

@@ -21,8 +21,8 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
             <span className="text-lg font-semibold">Beadbench</span>
           </div>
           <p className="mt-6 text-sm leading-relaxed text-accent-soft">
-            Monthly bead checks for every objective, depth profiles against theory, and a logbook that shows whether a
-            lens still resolves what it should.
+            Monthly bead checks for every objective, depth profiles against theory, and a logbook that shows
+            whether a lens still resolves what it should.
           </p>
           <ul className="mt-6 space-y-2 text-sm text-white/90">
             <li>· Lateral and axial FWHM at every depth</li>
@@ -34,7 +34,10 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           <h1>Sign in</h1>
           <p className="mb-6 mt-1 text-sm text-ink-soft">Use the e-mail address your facility registered.</p>
           {notice ? (
-            <p role="status" className="mb-4 rounded-md bg-accent-soft/60 px-3 py-2 text-sm text-accent-strong">
+            <p
+              role="status"
+              className="mb-4 rounded-md bg-accent-soft/60 px-3 py-2 text-sm text-accent-strong"
+            >
               {notice}
             </p>
           ) : null}

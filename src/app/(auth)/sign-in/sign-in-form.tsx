@@ -24,10 +24,21 @@ export function SignInForm() {
         <label className="label" htmlFor="password">
           Password
         </label>
-        <input id="password" name="password" type="password" autoComplete="current-password" required className="field" />
+        <input
+          id="password"
+          name="password"
+          type="password"
+          autoComplete="current-password"
+          required
+          className="field"
+        />
       </div>
       {state.error ? (
-        <p role="alert" className="rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad">
+        <p
+          role="alert"
+          data-testid="sign-in-error"
+          className="rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad"
+        >
           {state.error}
         </p>
       ) : null}

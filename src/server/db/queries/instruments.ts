@@ -9,7 +9,10 @@ export async function listInstrumentsByFacility(
   { facilityId, onlyIds }: { facilityId: string; onlyIds?: string[] },
 ): Promise<Instrument[]> {
   const where = onlyIds
-    ? and(eq(instruments.facilityId, facilityId), inArray(instruments.id, onlyIds.length ? onlyIds : ["00000000-0000-0000-0000-000000000000"]))
+    ? and(
+        eq(instruments.facilityId, facilityId),
+        inArray(instruments.id, onlyIds.length ? onlyIds : ["00000000-0000-0000-0000-000000000000"]),
+      )
     : eq(instruments.facilityId, facilityId);
   return db.select().from(instruments).where(where).orderBy(asc(instruments.name));
 }
@@ -33,9 +36,19 @@ export async function listObjectivesByFacility(
   { facilityId, instrumentIds }: { facilityId: string; instrumentIds?: string[] },
 ): Promise<Objective[]> {
   const where = instrumentIds
-    ? and(eq(objectives.facilityId, facilityId), inArray(objectives.instrumentId, instrumentIds.length ? instrumentIds : ["00000000-0000-0000-0000-000000000000"]))
+    ? and(
+        eq(objectives.facilityId, facilityId),
+        inArray(
+          objectives.instrumentId,
+          instrumentIds.length ? instrumentIds : ["00000000-0000-0000-0000-000000000000"],
+        ),
+      )
     : eq(objectives.facilityId, facilityId);
-  return db.select().from(objectives).where(where).orderBy(asc(objectives.magnification), asc(objectives.name));
+  return db
+    .select()
+    .from(objectives)
+    .where(where)
+    .orderBy(asc(objectives.magnification), asc(objectives.name));
 }
 
 export async function getObjectiveById(db: Q, { facilityId, id }: { facilityId: string; id: string }) {
@@ -54,7 +67,11 @@ export async function insertObjective(db: Q, values: typeof objectives.$inferIns
 
 export async function updateObjective(
   db: Q,
-  { facilityId, id, values }: { facilityId: string; id: string; values: Partial<typeof objectives.$inferInsert> },
+  {
+    facilityId,
+    id,
+    values,
+  }: { facilityId: string; id: string; values: Partial<typeof objectives.$inferInsert> },
 ) {
   const [row] = await db
     .update(objectives)

@@ -22,7 +22,10 @@ export async function listAssignedInstrumentIds(
   return [...new Set(rows.map((r) => r.instrumentId))];
 }
 
-export async function listServiceVisitsByFacility(db: Db | Tx, { facilityId, engineerId }: { facilityId: string; engineerId?: string }) {
+export async function listServiceVisitsByFacility(
+  db: Db | Tx,
+  { facilityId, engineerId }: { facilityId: string; engineerId?: string },
+) {
   const where = engineerId
     ? and(eq(serviceVisits.facilityId, facilityId), eq(serviceVisits.engineerId, engineerId))
     : eq(serviceVisits.facilityId, facilityId);

@@ -14,7 +14,10 @@ export async function getUserById(db: Q, { id }: { id: string }) {
   return row;
 }
 
-export async function recordFailedSignIn(db: Q, { userId, lockAfter, lockMinutes }: { userId: string; lockAfter: number; lockMinutes: number }) {
+export async function recordFailedSignIn(
+  db: Q,
+  { userId, lockAfter, lockMinutes }: { userId: string; lockAfter: number; lockMinutes: number },
+) {
   // One statement, so concurrent failures can't race past the lock.
   await db
     .update(users)
@@ -57,7 +60,13 @@ export async function getMembership(db: Q, { userId, facilityId }: { userId: str
 
 export async function listPeopleByFacility(db: Q, { facilityId }: { facilityId: string }) {
   return db
-    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, lastSignInAt: users.lastSignInAt })
+    .select({
+      userId: users.id,
+      name: users.name,
+      email: users.email,
+      role: memberships.role,
+      lastSignInAt: users.lastSignInAt,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.facilityId, facilityId))

@@ -22,7 +22,9 @@ export const instruments = pgTable(
       .references(() => facilities.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
     modality: modalityEnum("modality").notNull(),
-    stand: text("stand", { enum: ["inverted", "upright"] }).notNull().default("inverted"),
+    stand: text("stand", { enum: ["inverted", "upright"] })
+      .notNull()
+      .default("inverted"),
     serialNumber: text("serial_number"),
     location: text("location"),
     /** Pinhole in Airy units used unless a measurement says otherwise (confocal only). */

@@ -7,7 +7,13 @@ const limits = { lateral: 1.5, axial: 1.5 };
 
 describe("computeObjectiveStatus", () => {
   it("reports no data without any check", () => {
-    const r = computeObjectiveStatus({ now, lastCheckAt: null, checkIntervalDays: 30, latestRatios: null, limits });
+    const r = computeObjectiveStatus({
+      now,
+      lastCheckAt: null,
+      checkIntervalDays: 30,
+      latestRatios: null,
+      limits,
+    });
     expect(r.status).toBe("no data");
     expect(r.nextDueAt).toBeNull();
   });

@@ -1,0 +1,34 @@
+"use server";
+import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import { requireApiActor } from "@/server/auth/current-actor";
+import { getDb } from "@/server/db/client";
+import { AppError } from "@/server/http/errors";
+import { createApiToken } from "@/server/services/api-tokens";
+
+const schema = z.object({
+  name: z.string().trim().min(1, "Give the token a name").max(80),
+  expiresInDays: z.coerce.number().int().min(1).max(730).optional(),
+});
+
+export interface TokenState {
+  token?: string;
+  error?: string;
+}
+
+export async function createTokenAction(_prev: TokenState, form: FormData): Promise<TokenState> {
+  try {
+    const actor = await requireApiActor();
+    const input = schema.parse({
+      name: form.get("name"),
+      expiresInDays: form.get("expiresInDays") || undefined,
+    });
+    const created = await createApiToken(getDb(), actor, input);
+    revalidatePath("/settings");
+    return { token: created.token };
+  } catch (err) {
+    if (err instanceof z.ZodError) return { error: err.issues.map((i) => i.message).join("; ") };
+    if (err instanceof AppError) return { error: err.message };
+    return { error: "The token could not be created. Try again." };
+  }
+}

@@ -1,0 +1,96 @@
+/**
+ * Integration-test fixtures: facilities, people and instruments created directly in
+ * the test database (a fresh database per `npm test` run, dropped afterwards).
+ */
+import { randomUUID } from "node:crypto";
+import { getDb } from "@/server/db/client";
+import {
+  facilities,
+  instruments,
+  memberships,
+  objectives,
+  serviceVisitInstruments,
+  serviceVisits,
+  users,
+} from "@/server/db/schema";
+import type { Actor, Role } from "@/server/auth/permissions";
+import { hashPassword } from "@/server/services/sign-in";
+
+export interface TestFacility {
+  facilityId: string;
+  actors: Record<Role, Actor>;
+  instrumentIds: [string, string];
+  objectiveIds: [string, string];
+  passwords: Record<Role, string>;
+}
+
+/** A facility with one member per role, two instruments with one objective each, and an engineer visit on the first. */
+export async function makeFacility(label: string): Promise<TestFacility> {
+  const db = getDb();
+  const tag = `${label}-${randomUUID().slice(0, 8)}`;
+  const [facility] = await db
+    .insert(facilities)
+    .values({ name: `Test facility ${tag}`, slug: tag })
+    .returning();
+  const facilityId = facility!.id;
+  const actors = {} as Record<Role, Actor>;
+  const passwords = {} as Record<Role, string>;
+  for (const role of ["admin", "staff", "researcher", "engineer"] as const) {
+    passwords[role] = `pw-${role}-${tag}`;
+    const [u] = await db
+      .insert(users)
+      .values({
+        email: `${role}-${tag}@test.example`,
+        name: `${role} ${tag}`,
+        passwordHash: await hashPassword(passwords[role]),
+      })
+      .returning();
+    await db.insert(memberships).values({ facilityId, userId: u!.id, role });
+    actors[role] = { userId: u!.id, facilityId, role, via: "session" };
+  }
+  const [i1] = await db
+    .insert(instruments)
+    .values({ facilityId, name: `Scope A ${tag}`, modality: "confocal" })
+    .returning();
+  const [i2] = await db
+    .insert(instruments)
+    .values({ facilityId, name: `Scope B ${tag}`, modality: "widefield" })
+    .returning();
+  const [o1] = await db
+    .insert(objectives)
+    .values({
+      facilityId,
+      instrumentId: i1!.id,
+      name: "63× / 1.40 oil",
+      magnification: 63,
+      na: 1.4,
+      immersion: "oil",
+      designImmersionRi: 1.518,
+    })
+    .returning();
+  const [o2] = await db
+    .insert(objectives)
+    .values({
+      facilityId,
+      instrumentId: i2!.id,
+      name: "60× / 1.20 water",
+      magnification: 60,
+      na: 1.2,
+      immersion: "water",
+      designImmersionRi: 1.333,
+    })
+    .returning();
+  const now = Date.now();
+  const [visit] = await db
+    .insert(serviceVisits)
+    .values({
+      facilityId,
+      engineerId: actors.engineer.userId,
+      title: "visit",
+      startsAt: new Date(now - 86_400_000),
+      endsAt: new Date(now + 86_400_000),
+    })
+    .returning();
+  await db.insert(serviceVisitInstruments).values({ visitId: visit!.id, instrumentId: i1!.id });
+  return { facilityId, actors, instrumentIds: [i1!.id, i2!.id], objectiveIds: [o1!.id, o2!.id], passwords };
+}
