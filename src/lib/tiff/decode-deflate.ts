@@ -5,6 +5,13 @@ import { inflateSync, unzlibSync } from "fflate";
 import { TiffInputError } from "./tiff-input-error";
 
 /**
+ * A Deflate decoder: inflate a zlib stream `compressed` into `out` (truncating longer output)
+ * and return the number of bytes written. {@link decodeDeflate} is the default; a caller may pass
+ * a native one (e.g. built on node:zlib in the worker) through `readTiffStack`'s `inflate` option.
+ */
+export type InflateFunction = (compressed: Uint8Array, out: Uint8Array) => number;
+
+/**
  * Inflate one Deflate-compressed strip or tile into `out`.
  *
  * @param input - the compressed bytes (a zlib stream; a raw deflate stream is accepted too)

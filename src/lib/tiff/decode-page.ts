@@ -2,7 +2,7 @@
  * Decode one planned TIFF page into its slot of the stack's byte buffer.
  */
 import { applyPredictor } from "./apply-predictor";
-import { decodeDeflate } from "./decode-deflate";
+import { decodeDeflate, type InflateFunction } from "./decode-deflate";
 import { decodeLzw } from "./decode-lzw";
 import { decodePackbits } from "./decode-packbits";
 import type { PageLayout } from "./plan-tiff-stack";
@@ -18,6 +18,8 @@ import { TiffInputError } from "./tiff-input-error";
  * @param out - the stack's bytes
  * @param outOffset - byte offset of this page's plane in `out` (a multiple of the sample size)
  * @param scratch - optional reusable buffer for tiles
+ * @param inflate - optional replacement Deflate decoder (e.g. a native zlib binding supplied by
+ *   the caller); @default {@link decodeDeflate} (fflate, pure JS)
  * @returns the scratch buffer (possibly grown) for reuse on the next page
  * @throws {TiffInputError} `corrupt_data` when a strip/tile decodes to fewer bytes than it must,
  *   `truncated` when an uncompressed strip is short, `unsupported_compression`
@@ -38,6 +40,7 @@ export function decodePage(
   out: Uint8Array,
   outOffset: number,
   scratch: Uint8Array | null = null,
+  inflate: InflateFunction = decodeDeflate,
 ): Uint8Array | null {
   const { width, height, bytesPerSample: bps, offsets, byteCounts } = page;
   const rowBytes = width * bps;
@@ -52,7 +55,7 @@ export function decodePage(
       const expected = rows * rowBytes;
       const dst = out.subarray(outOffset + s * rps * rowBytes, outOffset + s * rps * rowBytes + expected);
       const src = chunk(file, offsets[s], byteCounts ? byteCounts[s] : expected);
-      decodeChunk(src, dst, page, s);
+      decodeChunk(src, dst, page, s, inflate);
       if (swap) swapBytes(dst, bps);
       if (page.predictor !== 1) {
         const restored = applyPredictor(dst, page.predictor, width, rows, bps);
@@ -72,7 +75,7 @@ export function decodePage(
     const ty = Math.floor(k / across) * th;
     buf.fill(0);
     const src = chunk(file, offsets[k], byteCounts ? byteCounts[k] : tileBytes);
-    decodeChunk(src, buf, page, k);
+    decodeChunk(src, buf, page, k, inflate);
     if (swap) swapBytes(buf, bps);
     let tile = buf;
     if (page.predictor !== 1) tile = applyPredictor(buf, page.predictor, tw, th, bps);
@@ -91,7 +94,7 @@ function chunk(file: Uint8Array, offset: number, count: number): Uint8Array {
   return file.subarray(offset, offset + count);
 }
 
-function decodeChunk(src: Uint8Array, dst: Uint8Array, page: PageLayout, k: number): void {
+function decodeChunk(src: Uint8Array, dst: Uint8Array, page: PageLayout, k: number, inflate: InflateFunction): void {
   let n: number;
   switch (page.compression) {
     case 1:
@@ -106,7 +109,12 @@ function decodeChunk(src: Uint8Array, dst: Uint8Array, page: PageLayout, k: numb
       break;
     case 8:
     case 32946:
-      n = decodeDeflate(src, dst);
+      try {
+        n = inflate(src, dst);
+      } catch (e) {
+        if (e instanceof TiffInputError) throw e;
+        throw new TiffInputError("corrupt_data", `Deflate data of strip/tile ${k} of page ${page.ifdIndex} could not be inflated.`, { page: page.ifdIndex, chunk: k });
+      }
       break;
     case 32773:
       n = decodePackbits(src, dst);

@@ -4,7 +4,7 @@
 export { dtypeMaximum } from "./stack";
 export type { Stack, StackData, StackDtype, VoxelSizeUm } from "./stack";
 export { readTiffStack } from "./read-tiff-stack";
-export type { TiffStackResult } from "./read-tiff-stack";
+export type { ReadTiffStackOptions, TiffStackResult } from "./read-tiff-stack";
 export { inspectTiff } from "./inspect-tiff";
 export type { TiffReadOptions } from "./plan-tiff-stack";
 export { mergeUserMetadata } from "./merge-user-metadata";
@@ -21,4 +21,5 @@ export { lengthToUm } from "./length-to-um";
 export { decodeLzw } from "./decode-lzw";
 export { decodePackbits } from "./decode-packbits";
 export { decodeDeflate } from "./decode-deflate";
+export type { InflateFunction } from "./decode-deflate";
 export { applyPredictor } from "./apply-predictor";
