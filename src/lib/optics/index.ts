@@ -117,3 +117,22 @@ export { refractiveIndex, type RefractiveIndexConditions } from "./media/refract
 export { waterRefractiveIndexVacuum, waterDensityKgM3, WATER_DENSITY_TABLE } from "./media/water-iapws";
 export { airRefractiveIndex } from "./media/air-refractive-index";
 export { cauchyFromAbbe, type CauchyTwoTerm } from "./media/cauchy-from-abbe";
+export { studentT975 } from "./student-t-quantile";
+export {
+  fitEffectiveSampleRi,
+  judgeDeclaredRi,
+  type DepthProfileRow,
+  type FitOptics,
+  type FitEffectiveSampleRiOptions,
+  type FittedRow,
+  type EffectiveSampleRiFit,
+  type DeclaredRiVerdict,
+} from "./fit-effective-sample-ri";
+export {
+  plannerRows,
+  diffractionLimitedReference,
+  type ObjectiveSpec,
+  type PlannerRow,
+  type DiffractionLimitedReference,
+} from "./planner-rows";
+export { rankObjectives, type RankObjectivesOptions, type ObjectiveRanking } from "./rank-objectives";
