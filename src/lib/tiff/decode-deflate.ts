@@ -28,6 +28,8 @@ export type InflateFunction = (compressed: Uint8Array, out: Uint8Array) => numbe
 export function decodeDeflate(input: Uint8Array, out: Uint8Array): number {
   // A zlib header: CM = 8 and (CMF*256 + FLG) divisible by 31 (RFC 1950, section 2.2).
   const zlibHeader = input.length >= 2 && (input[0] & 0x0f) === 8 && ((input[0] << 8) | input[1]) % 31 === 0;
+  // fflate returns the whole `out` untouched for an empty payload; report 0 bytes instead.
+  if (input.length <= (zlibHeader ? 6 : 0)) return 0;
   try {
     const result = zlibHeader ? unzlibSync(input, { out }) : inflateSync(input, { out });
     if (result.buffer !== out.buffer || result.byteOffset !== out.byteOffset) {
