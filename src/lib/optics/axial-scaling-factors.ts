@@ -49,7 +49,11 @@ function rayRatio(s: number, immersionRi: number, sampleRi: number): number {
  * @throws RangeError for non-positive inputs
  * @example axialScalingFactors({ na: 1.3, immersionRi: 1.518, sampleRi: 1.333 }).paraxial.factor // 0.8781
  */
-export function axialScalingFactors(options: { na: number; immersionRi: number; sampleRi: number }): AxialScalingFactors {
+export function axialScalingFactors(options: {
+  na: number;
+  immersionRi: number;
+  sampleRi: number;
+}): AxialScalingFactors {
   const { na, immersionRi, sampleRi } = options;
   checkPositive("na", na);
   checkPositive("immersionRi", immersionRi);

@@ -38,7 +38,11 @@ export function beadEquivalentFwhmNm(diameterNm: number, labelling: BeadLabellin
  * @returns measured FWHM, nm
  * @example convolveBeadFwhmNm(200, 175) // 220.2
  */
-export function convolveBeadFwhmNm(psfFwhmNm: number, diameterNm: number, labelling: BeadLabelling = "solid"): number {
+export function convolveBeadFwhmNm(
+  psfFwhmNm: number,
+  diameterNm: number,
+  labelling: BeadLabelling = "solid",
+): number {
   checkPositive("psfFwhmNm", psfFwhmNm);
   return Math.hypot(psfFwhmNm, beadEquivalentFwhmNm(diameterNm, labelling));
 }
@@ -67,7 +71,11 @@ export interface BeadCorrection {
  * @returns corrected FWHM, the subtracted term and a reliability flag
  * @example correctBeadFwhmNm(222.3, 175).correctedNm // 202.3
  */
-export function correctBeadFwhmNm(measuredFwhmNm: number, diameterNm: number, labelling: BeadLabelling = "solid"): BeadCorrection {
+export function correctBeadFwhmNm(
+  measuredFwhmNm: number,
+  diameterNm: number,
+  labelling: BeadLabelling = "solid",
+): BeadCorrection {
   checkPositive("measuredFwhmNm", measuredFwhmNm);
   const beadEquivalentNm = beadEquivalentFwhmNm(diameterNm, labelling);
   const diff = measuredFwhmNm * measuredFwhmNm - beadEquivalentNm * beadEquivalentNm;

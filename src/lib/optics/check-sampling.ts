@@ -78,7 +78,12 @@ export function checkSampling(options: {
   const theory = theoreticalFwhm(optics);
   const lateralVoxelNm = Math.max(voxelSizeUm.x, voxelSizeUm.y) * 1000;
   const axialVoxelNm = voxelSizeUm.z * 1000;
-  const axis = (voxelNm: number, nyquistNm: number, fwhmNm: number, minSamples: number): SamplingAxisCheck => {
+  const axis = (
+    voxelNm: number,
+    nyquistNm: number,
+    fwhmNm: number,
+    minSamples: number,
+  ): SamplingAxisCheck => {
     const nyquistRatio = voxelNm / nyquistNm;
     const samplesAcrossFwhm = fwhmNm / voxelNm;
     return {
@@ -99,6 +104,8 @@ export function checkSampling(options: {
     `Pixel ${lateral.voxelNm.toFixed(0)} nm is ${lateral.nyquistRatio.toFixed(2)}× Nyquist (${lateral.nyquistNm.toFixed(1)} nm), ` +
     `${lateral.samplesAcrossFwhm.toFixed(1)} px across the lateral FWHM; z-step ${axial.voxelNm.toFixed(0)} nm is ` +
     `${axial.nyquistRatio.toFixed(2)}× Nyquist (${axial.nyquistNm.toFixed(1)} nm), ${axial.samplesAcrossFwhm.toFixed(1)} planes across the axial FWHM.` +
-    (lateral.enoughForFitting && axial.enoughForFitting ? "" : " Too few samples across the PSF for a reliable Gaussian fit.");
+    (lateral.enoughForFitting && axial.enoughForFitting
+      ? ""
+      : " Too few samples across the PSF for a reliable Gaussian fit.");
   return { lateral, axial, verdict, message };
 }

@@ -60,7 +60,10 @@ export function confocalFwhm(options: {
     (Math.SQRT2 * excitationWavelengthNm * emissionWavelengthNm) /
     Math.hypot(excitationWavelengthNm, emissionWavelengthNm);
   const axialTerm = axialApertureTerm(na, immersionRi);
-  const small = { lateralNm: (CONFOCAL_LATERAL_CONSTANT * lambdaBar) / na, axialNm: (CONFOCAL_AXIAL_CONSTANT * lambdaBar) / axialTerm };
+  const small = {
+    lateralNm: (CONFOCAL_LATERAL_CONSTANT * lambdaBar) / na,
+    axialNm: (CONFOCAL_AXIAL_CONSTANT * lambdaBar) / axialTerm,
+  };
   const large = {
     lateralNm: (AIRY_FWHM_CONSTANT * excitationWavelengthNm) / na,
     axialNm: (WIDEFIELD_AXIAL_CONSTANT * excitationWavelengthNm) / axialTerm,

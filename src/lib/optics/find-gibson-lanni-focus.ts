@@ -46,7 +46,10 @@ export function matchedAxialFwhmUm(model: GibsonLanniModel): number {
  * which the GL intensity maximum lies (near the coverslip it sits at the RMS-optimal defocus,
  * deep down it drifts to the paraxial one, METHODS §4.3).
  */
-export function focusEstimatesUm(model: GibsonLanniModel, depthUm: number): { paraxialUm: number; rmsOptimalUm: number } {
+export function focusEstimatesUm(
+  model: GibsonLanniModel,
+  depthUm: number,
+): { paraxialUm: number; rmsOptimalUm: number } {
   const p = model.params;
   const layerTerm =
     p.workingDistanceDesignUm * (1 / p.immersionRi - 1 / p.immersionRiDesign) +
@@ -82,13 +85,21 @@ export interface AxialEvaluator {
 }
 
 /** Build an on-axis evaluator whose node count covers nominal focus in [loUm, hiUm] (internal). */
-export function makeAxialEvaluator(model: GibsonLanniModel, depthUm: number, loUm: number, hiUm: number): AxialEvaluator {
+export function makeAxialEvaluator(
+  model: GibsonLanniModel,
+  depthUm: number,
+  loUm: number,
+  hiUm: number,
+): AxialEvaluator {
   const nodeCount = Math.max(
     gibsonLanniNodeCount(model, { radiusUm: 0, focusOffsetUm: -loUm, particleDepthUm: depthUm }),
     gibsonLanniNodeCount(model, { radiusUm: 0, focusOffsetUm: -hiUm, particleDepthUm: depthUm }),
   );
   const table = getGibsonLanniPupilTable(model, nodeCount);
-  return { table, at: (nominalFocusUm: number) => gibsonLanniSum(table, table.weight, -nominalFocusUm, depthUm) };
+  return {
+    table,
+    at: (nominalFocusUm: number) => gibsonLanniSum(table, table.weight, -nominalFocusUm, depthUm),
+  };
 }
 
 const GOLDEN = (Math.sqrt(5) - 1) / 2;
@@ -148,7 +159,13 @@ export function findGibsonLanniFocus(
   let iterations = 0;
   let converged = true;
   for (const index of candidates.slice(0, 3)) {
-    const refined = goldenMaximum(evaluator.at, xs[index] - step, xs[index] + step, toleranceUm, maxIterations);
+    const refined = goldenMaximum(
+      evaluator.at,
+      xs[index] - step,
+      xs[index] + step,
+      toleranceUm,
+      maxIterations,
+    );
     iterations += refined.iterations;
     converged &&= refined.converged;
     if (refined.value > peakRelative) {

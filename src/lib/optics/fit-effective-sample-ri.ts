@@ -78,10 +78,16 @@ export interface EffectiveSampleRiFit {
 function checkRows(rows: DepthProfileRow[]): void {
   if (rows.length === 0) throw new RangeError("fitEffectiveSampleRi: rows must not be empty");
   rows.forEach((r, i) => {
-    if (!Number.isFinite(r.depthUm) || r.depthUm < 0) throw new RangeError(`fitEffectiveSampleRi: rows[${i}].depthUm must be finite and ≥ 0, got ${r.depthUm}`);
-    if (!(r.axialFwhmUm > 0)) throw new RangeError(`fitEffectiveSampleRi: rows[${i}].axialFwhmUm must be > 0, got ${r.axialFwhmUm}`);
+    if (!Number.isFinite(r.depthUm) || r.depthUm < 0)
+      throw new RangeError(
+        `fitEffectiveSampleRi: rows[${i}].depthUm must be finite and ≥ 0, got ${r.depthUm}`,
+      );
+    if (!(r.axialFwhmUm > 0))
+      throw new RangeError(`fitEffectiveSampleRi: rows[${i}].axialFwhmUm must be > 0, got ${r.axialFwhmUm}`);
     if (r.axialFwhmSeUm !== undefined && !(r.axialFwhmSeUm > 0)) {
-      throw new RangeError(`fitEffectiveSampleRi: rows[${i}].axialFwhmSeUm must be > 0, got ${r.axialFwhmSeUm}`);
+      throw new RangeError(
+        `fitEffectiveSampleRi: rows[${i}].axialFwhmSeUm must be > 0, got ${r.axialFwhmSeUm}`,
+      );
     }
   });
 }
@@ -179,10 +185,19 @@ export function fitEffectiveSampleRi(
   setup: { optics: FitOptics; depthKind: "nominal" | "actual" },
   options: FitEffectiveSampleRiOptions = {},
 ): EffectiveSampleRiFit {
-  const { minRi = 1.3, maxRi = 1.6, gridCount = 13, toleranceRi = 2e-4, maxIterations = 40, curveSampleCount = 7 } = options;
+  const {
+    minRi = 1.3,
+    maxRi = 1.6,
+    gridCount = 13,
+    toleranceRi = 2e-4,
+    maxIterations = 40,
+    curveSampleCount = 7,
+  } = options;
   checkRows(rows);
-  if (!(minRi >= 1 && maxRi > minRi)) throw new RangeError(`fitEffectiveSampleRi: need 1 ≤ minRi < maxRi, got ${minRi}, ${maxRi}`);
-  if (!Number.isInteger(gridCount) || gridCount < 3) throw new RangeError(`fitEffectiveSampleRi: gridCount must be an integer ≥ 3, got ${gridCount}`);
+  if (!(minRi >= 1 && maxRi > minRi))
+    throw new RangeError(`fitEffectiveSampleRi: need 1 ≤ minRi < maxRi, got ${minRi}, ${maxRi}`);
+  if (!Number.isInteger(gridCount) || gridCount < 3)
+    throw new RangeError(`fitEffectiveSampleRi: gridCount must be an integer ≥ 3, got ${gridCount}`);
   const { optics, depthKind } = setup;
   createGibsonLanniModel({ ...optics, sampleRi: (minRi + maxRi) / 2 }); // validates the optics early
   const depths = rows.map((r) => r.depthUm);
@@ -256,11 +271,16 @@ export function fitEffectiveSampleRi(
 
   // Side selection with the asymmetry evidence (METHODS §8: far lobes ⇔ n_s < n_i).
   const asymRows = rows.filter((r) => r.asymmetry !== undefined && Number.isFinite(r.asymmetry));
-  const meanAsym = asymRows.length > 0 ? asymRows.reduce((s, r) => s + (r.asymmetry as number), 0) / asymRows.length : Number.NaN;
+  const meanAsym =
+    asymRows.length > 0
+      ? asymRows.reduce((s, r) => s + (r.asymmetry as number), 0) / asymRows.length
+      : Number.NaN;
   const belowImmersion = (ri: number) => ri < optics.immersionRi;
   let best = minima[0];
   let sideChosenBy: "sse" | "asymmetry" = "sse";
-  const other = minima.find((m) => belowImmersion(m.ri) !== belowImmersion(best.ri) && Math.abs(m.ri - best.ri) > 0.01);
+  const other = minima.find(
+    (m) => belowImmersion(m.ri) !== belowImmersion(best.ri) && Math.abs(m.ri - best.ri) > 0.01,
+  );
   if (other && Number.isFinite(meanAsym) && Math.abs(meanAsym) > 0.02) {
     const wantBelow = meanAsym > 0;
     if (belowImmersion(best.ri) !== wantBelow && belowImmersion(other.ri) === wantBelow) {
@@ -271,7 +291,11 @@ export function fitEffectiveSampleRi(
   const atBound = (ri: number) => ri - minRi < 2 * toleranceRi || maxRi - ri < 2 * toleranceRi;
   // A "minimum" pinned at the search bound is only the edge of a descending slope: not an alternative.
   const alternative = minima.find(
-    (m) => m !== best && !atBound(m.ri) && belowImmersion(m.ri) !== belowImmersion(best.ri) && Math.abs(m.ri - best.ri) > 0.01,
+    (m) =>
+      m !== best &&
+      !atBound(m.ri) &&
+      belowImmersion(m.ri) !== belowImmersion(best.ri) &&
+      Math.abs(m.ri - best.ri) > 0.01,
   );
 
   // Profile-likelihood interval.
@@ -287,7 +311,11 @@ export function fitEffectiveSampleRi(
     let inside = best.ri;
     let outside = Number.NaN;
     const stepRi = (maxRi - minRi) / (gridCount - 1) / 4;
-    for (let x = best.ri + direction * stepRi; direction > 0 ? x <= limit : x >= limit; x += direction * stepRi) {
+    for (
+      let x = best.ri + direction * stepRi;
+      direction > 0 ? x <= limit : x >= limit;
+      x += direction * stepRi
+    ) {
       if (sse(x) > threshold) {
         outside = x;
         break;
@@ -385,6 +413,8 @@ export function judgeDeclaredRi(fit: EffectiveSampleRiFit, declaredRi: number): 
     message: consistent
       ? `The depth profile is consistent with the declared RI ${declaredRi}: effective RI ${fitted} (95 % interval ${range}).`
       : `The depth profile is not consistent with the declared RI ${declaredRi}: effective RI ${fitted} (95 % interval ${range}). ` +
-        (declaredRi > hi ? "The sample behaves as if its RI were lower than declared." : "The sample behaves as if its RI were higher than declared."),
+        (declaredRi > hi
+          ? "The sample behaves as if its RI were lower than declared."
+          : "The sample behaves as if its RI were higher than declared."),
   };
 }

@@ -1,5 +1,10 @@
 import { axialScalingFactors } from "./axial-scaling-factors";
-import { findGibsonLanniFocus, makeAxialEvaluator, matchedAxialFwhmUm, type FindGibsonLanniFocusOptions } from "./find-gibson-lanni-focus";
+import {
+  findGibsonLanniFocus,
+  makeAxialEvaluator,
+  matchedAxialFwhmUm,
+  type FindGibsonLanniFocusOptions,
+} from "./find-gibson-lanni-focus";
 import {
   createGibsonLanniModel,
   getGibsonLanniPupilTable,
@@ -47,7 +52,14 @@ export interface GibsonLanniDepthMetrics {
 }
 
 /** Walk from x0 in steps of `step` (sign gives the direction) until f < level, then bisect. */
-function halfCrossing(f: (x: number) => number, x0: number, step: number, level: number, maxSteps: number, toleranceUm: number): number {
+function halfCrossing(
+  f: (x: number) => number,
+  x0: number,
+  step: number,
+  level: number,
+  maxSteps: number,
+  toleranceUm: number,
+): number {
   let inside = x0;
   let outside = Number.NaN;
   for (let i = 1; i <= maxSteps; i++) {
@@ -76,7 +88,7 @@ function strongestLobe(v: Float64Array, start: number, dir: 1 | -1): number {
     if (v[j] >= v[j - 1] && v[j] >= v[j + 1] && v[j] > 0) {
       // Parabolic refinement of the sampled maximum.
       const denom = v[j - 1] - 2 * v[j] + v[j + 1];
-      const peak = denom < 0 ? v[j] - ((v[j + 1] - v[j - 1]) ** 2) / (8 * denom) : v[j];
+      const peak = denom < 0 ? v[j] - (v[j + 1] - v[j - 1]) ** 2 / (8 * denom) : v[j];
       best = Math.max(best, peak);
     }
   }
@@ -119,7 +131,12 @@ export function gibsonLanniDepthMetrics(
   const half = peak / 2;
 
   const reach = 12 * fwhm0 + 0.5 * (focus.windowUm[1] - focus.windowUm[0]);
-  const axial = makeAxialEvaluator(model, depthUm, focus.nominalFocusUm - reach, focus.nominalFocusUm + reach);
+  const axial = makeAxialEvaluator(
+    model,
+    depthUm,
+    focus.nominalFocusUm - reach,
+    focus.nominalFocusUm + reach,
+  );
   const maxSteps = Math.ceil(reach / (fwhm0 / 4));
   const upper = halfCrossing(axial.at, focus.nominalFocusUm, fwhm0 / 4, half, maxSteps, toleranceUm);
   const lower = halfCrossing(axial.at, focus.nominalFocusUm, -fwhm0 / 4, half, maxSteps, toleranceUm);

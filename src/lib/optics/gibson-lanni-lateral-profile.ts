@@ -48,7 +48,9 @@ export function gibsonLanniLateralProfile(
     checkGibsonLanniPoint({ radiusUm: radiiUm[i], focusOffsetUm, particleDepthUm });
     maxRadiusUm = Math.max(maxRadiusUm, radiiUm[i]);
   }
-  const { nodeCount = gibsonLanniNodeCount(model, { radiusUm: maxRadiusUm, focusOffsetUm, particleDepthUm }) } = options;
+  const {
+    nodeCount = gibsonLanniNodeCount(model, { radiusUm: maxRadiusUm, focusOffsetUm, particleDepthUm }),
+  } = options;
   const table = getGibsonLanniPupilTable(model, nodeCount);
   for (let i = 0; i < radiiUm.length; i++) {
     const amplitudes = gibsonLanniAmplitudes(model, table, radiiUm[i]);

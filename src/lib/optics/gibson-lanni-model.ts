@@ -1,6 +1,10 @@
 import { besselJ0 } from "./bessel-j0";
 import { gaussLegendre } from "./gauss-legendre";
-import { resolveGibsonLanniParams, type GibsonLanniParams, type ResolvedGibsonLanniParams } from "./gibson-lanni-params";
+import {
+  resolveGibsonLanniParams,
+  type GibsonLanniParams,
+  type ResolvedGibsonLanniParams,
+} from "./gibson-lanni-params";
 
 /**
  * Per-node pupil terms for one Gauss–Legendre order (internal cache entry). For node j with pupil
@@ -70,8 +74,12 @@ export interface GibsonLanniPoint {
 export function createGibsonLanniModel(params: GibsonLanniParams | GibsonLanniModel): GibsonLanniModel {
   if (isGibsonLanniModel(params)) return params;
   const resolved = resolveGibsonLanniParams(params);
-  const { na, sampleRi, coverslipRi, coverslipRiDesign, immersionRi, immersionRiDesign, wavelengthNm } = resolved;
-  const rhoMax = Math.min(1, Math.min(sampleRi, coverslipRi, coverslipRiDesign, immersionRi, immersionRiDesign) / na);
+  const { na, sampleRi, coverslipRi, coverslipRiDesign, immersionRi, immersionRiDesign, wavelengthNm } =
+    resolved;
+  const rhoMax = Math.min(
+    1,
+    Math.min(sampleRi, coverslipRi, coverslipRiDesign, immersionRi, immersionRiDesign) / na,
+  );
   return {
     params: resolved,
     waveNumberPerUm: (2 * Math.PI) / (wavelengthNm / 1000),
@@ -167,7 +175,8 @@ export function gibsonLanniNodeCount(model: GibsonLanniModel, point: GibsonLanni
     if (i > 0) totalVariation += Math.abs(phase - previous);
     previous = phase;
   }
-  const besselCycles = (model.waveNumberPerUm * Math.abs(radiusUm) * model.params.na * model.rhoMax) / (2 * Math.PI);
+  const besselCycles =
+    (model.waveNumberPerUm * Math.abs(radiusUm) * model.params.na * model.rhoMax) / (2 * Math.PI);
   const oscillations = totalVariation / (2 * Math.PI) + besselCycles;
   const raw = 4 * oscillations + 50;
   return Math.min(8192, Math.max(96, Math.ceil(raw / 32) * 32));
@@ -177,7 +186,11 @@ export function gibsonLanniNodeCount(model: GibsonLanniModel, point: GibsonLanni
  * Pupil amplitudes weight·J₀(k r NA ρⱼ) of one table for one radius (internal helper for loops
  * that evaluate many focus positions at a fixed radius).
  */
-export function gibsonLanniAmplitudes(model: GibsonLanniModel, table: GibsonLanniPupilTable, radiusUm: number): Float64Array {
+export function gibsonLanniAmplitudes(
+  model: GibsonLanniModel,
+  table: GibsonLanniPupilTable,
+  radiusUm: number,
+): Float64Array {
   const out = new Float64Array(table.nodeCount);
   const scale = model.waveNumberPerUm * radiusUm * model.params.na;
   for (let j = 0; j < table.nodeCount; j++) {

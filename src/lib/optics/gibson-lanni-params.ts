@@ -67,25 +67,45 @@ export function resolveGibsonLanniParams(params: GibsonLanniParams): ResolvedGib
     coverslipThicknessDesignUm,
     workingDistanceDesignUm,
   };
-  for (const key of ["na", "wavelengthNm", "immersionRi", "sampleRi", "immersionRiDesign", "coverslipRi", "coverslipRiDesign"] as const) {
+  for (const key of [
+    "na",
+    "wavelengthNm",
+    "immersionRi",
+    "sampleRi",
+    "immersionRiDesign",
+    "coverslipRi",
+    "coverslipRiDesign",
+  ] as const) {
     const value = resolved[key];
     if (!Number.isFinite(value) || value <= 0) {
       throw new RangeError(`Gibson–Lanni: ${key} must be a finite number > 0, got ${value}`);
     }
   }
-  for (const key of ["coverslipThicknessUm", "coverslipThicknessDesignUm", "workingDistanceDesignUm"] as const) {
+  for (const key of [
+    "coverslipThicknessUm",
+    "coverslipThicknessDesignUm",
+    "workingDistanceDesignUm",
+  ] as const) {
     const value = resolved[key];
     if (!Number.isFinite(value) || value < 0) {
       throw new RangeError(`Gibson–Lanni: ${key} must be a finite number ≥ 0, got ${value}`);
     }
   }
-  for (const key of ["immersionRi", "sampleRi", "immersionRiDesign", "coverslipRi", "coverslipRiDesign"] as const) {
+  for (const key of [
+    "immersionRi",
+    "sampleRi",
+    "immersionRiDesign",
+    "coverslipRi",
+    "coverslipRiDesign",
+  ] as const) {
     if (resolved[key] < 1 || resolved[key] > 3) {
       throw new RangeError(`Gibson–Lanni: ${key} must lie in [1, 3], got ${resolved[key]}`);
     }
   }
   if (na > immersionRiDesign) {
-    throw new RangeError(`Gibson–Lanni: na (${na}) cannot exceed the design immersion RI (${immersionRiDesign})`);
+    throw new RangeError(
+      `Gibson–Lanni: na (${na}) cannot exceed the design immersion RI (${immersionRiDesign})`,
+    );
   }
   if (wavelengthNm < 100 || wavelengthNm > 3000) {
     throw new RangeError(`Gibson–Lanni: wavelengthNm must lie in [100, 3000] nm, got ${wavelengthNm}`);

@@ -2,7 +2,11 @@
 export { besselJ0 } from "./bessel-j0";
 export { besselJ1 } from "./bessel-j1";
 export { gaussLegendre, type GaussLegendreRule } from "./gauss-legendre";
-export { resolveGibsonLanniParams, type GibsonLanniParams, type ResolvedGibsonLanniParams } from "./gibson-lanni-params";
+export {
+  resolveGibsonLanniParams,
+  type GibsonLanniParams,
+  type ResolvedGibsonLanniParams,
+} from "./gibson-lanni-params";
 export {
   createGibsonLanniModel,
   gibsonLanniIntensity,
@@ -12,7 +16,10 @@ export {
   type GibsonLanniIntensityOptions,
 } from "./gibson-lanni-model";
 export { gibsonLanniAxialProfile, type GibsonLanniAxialProfileOptions } from "./gibson-lanni-axial-profile";
-export { gibsonLanniLateralProfile, type GibsonLanniLateralProfileOptions } from "./gibson-lanni-lateral-profile";
+export {
+  gibsonLanniLateralProfile,
+  type GibsonLanniLateralProfileOptions,
+} from "./gibson-lanni-lateral-profile";
 export {
   renderGibsonLanniVolume,
   type RenderGibsonLanniVolumeOptions,
@@ -95,13 +102,7 @@ export {
   type MakeNominalToActualDepthOptions,
   type NominalToActualDepth,
 } from "./make-nominal-to-actual-depth";
-export type {
-  Medium,
-  CustomMedium,
-  MediumCategory,
-  EvidenceTag,
-  Dispersion,
-} from "./media/medium-types";
+export type { Medium, CustomMedium, MediumCategory, EvidenceTag, Dispersion } from "./media/medium-types";
 export {
   listMedia,
   getMedium,
@@ -136,3 +137,10 @@ export {
   type DiffractionLimitedReference,
 } from "./planner-rows";
 export { rankObjectives, type RankObjectivesOptions, type ObjectiveRanking } from "./rank-objectives";
+export {
+  marechalStrehl,
+  mismatchRmsWavefront,
+  type MarechalStrehl,
+  type MismatchRmsWavefront,
+} from "./mismatch-aberration";
+export { airyBestGaussianSigma } from "./airy-best-gaussian-sigma";

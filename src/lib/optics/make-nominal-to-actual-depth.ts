@@ -93,7 +93,8 @@ export function makeNominalToActualDepth(
     model: "gibson-lanni-peak",
     toActualUm: toActual,
     toNominalUm: (actualUm: number) => toNominal(actualUm),
-    localFactorAt: (nominalUm: number) => (2 * h) / (toNominal(toActual(nominalUm) + h) - toNominal(toActual(nominalUm) - h)),
+    localFactorAt: (nominalUm: number) =>
+      (2 * h) / (toNominal(toActual(nominalUm) + h) - toNominal(toActual(nominalUm) - h)),
     samples: { actualDepthUm, nominalFocusUm },
     converged,
   };

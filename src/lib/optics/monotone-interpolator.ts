@@ -20,7 +20,8 @@ export type Interpolator = (x: number) => number;
  */
 export function createMonotoneInterpolator(xs: ArrayLike<number>, ys: ArrayLike<number>): Interpolator {
   const n = xs.length;
-  if (n !== ys.length) throw new RangeError(`createMonotoneInterpolator: xs (${n}) and ys (${ys.length}) differ in length`);
+  if (n !== ys.length)
+    throw new RangeError(`createMonotoneInterpolator: xs (${n}) and ys (${ys.length}) differ in length`);
   if (n < 2) throw new RangeError(`createMonotoneInterpolator: need at least 2 points, got ${n}`);
   const x = Float64Array.from(xs);
   const y = Float64Array.from(ys);
@@ -28,7 +29,8 @@ export function createMonotoneInterpolator(xs: ArrayLike<number>, ys: ArrayLike<
   const delta = new Float64Array(n - 1);
   for (let i = 0; i < n - 1; i++) {
     h[i] = x[i + 1] - x[i];
-    if (!(h[i] > 0)) throw new RangeError(`createMonotoneInterpolator: xs must be strictly increasing (index ${i + 1})`);
+    if (!(h[i] > 0))
+      throw new RangeError(`createMonotoneInterpolator: xs must be strictly increasing (index ${i + 1})`);
     delta[i] = (y[i + 1] - y[i]) / h[i];
   }
   const d = new Float64Array(n);

@@ -39,7 +39,13 @@ export function nyquistSampling(options: {
   emissionWavelengthNm: number;
   excitationWavelengthNm?: number;
 }): NyquistSampling {
-  const { modality, na, immersionRi, emissionWavelengthNm, excitationWavelengthNm = emissionWavelengthNm } = options;
+  const {
+    modality,
+    na,
+    immersionRi,
+    emissionWavelengthNm,
+    excitationWavelengthNm = emissionWavelengthNm,
+  } = options;
   checkApertureAndIndex(na, immersionRi);
   checkPositive("emissionWavelengthNm", emissionWavelengthNm);
   checkPositive("excitationWavelengthNm", excitationWavelengthNm);

@@ -40,7 +40,11 @@ export interface PlannerRow {
 }
 
 /** Build the GL model of an objective focusing into a sample (internal helper). */
-export function objectiveModel(objective: ObjectiveSpec, sampleRi: number, wavelengthNm: number): GibsonLanniModel {
+export function objectiveModel(
+  objective: ObjectiveSpec,
+  sampleRi: number,
+  wavelengthNm: number,
+): GibsonLanniModel {
   const design = objective.coverslipThicknessDesignUm ?? 170;
   return createGibsonLanniModel({
     na: objective.na,
@@ -82,7 +86,8 @@ export function plannerRows(input: {
 }): PlannerRow[] {
   const { objective, sampleRi, wavelengthNm, depthsUm } = input;
   depthsUm.forEach((d, i) => {
-    if (!Number.isFinite(d) || d < 0) throw new RangeError(`plannerRows: depthsUm[${i}] must be finite and ≥ 0, got ${d}`);
+    if (!Number.isFinite(d) || d < 0)
+      throw new RangeError(`plannerRows: depthsUm[${i}] must be finite and ≥ 0, got ${d}`);
   });
   const model = objectiveModel(objective, sampleRi, wavelengthNm);
   if (depthsUm.length === 0) return [];
@@ -133,5 +138,11 @@ export function diffractionLimitedReference(input: {
     emissionWavelengthNm: wavelengthNm,
     sampleRi,
   });
-  return { lateralFwhmUm: t.lateralNm / 1000, axialFwhmUm: t.axialNm / 1000, formulaId: t.formulaId, formulaVersion: t.formulaVersion, notes: t.notes };
+  return {
+    lateralFwhmUm: t.lateralNm / 1000,
+    axialFwhmUm: t.axialNm / 1000,
+    formulaId: t.formulaId,
+    formulaVersion: t.formulaVersion,
+    notes: t.notes,
+  };
 }

@@ -1,4 +1,8 @@
-import { gibsonLanniDepthMetrics, type GibsonLanniDepthMetrics, type GibsonLanniDepthMetricsOptions } from "./gibson-lanni-depth-metrics";
+import {
+  gibsonLanniDepthMetrics,
+  type GibsonLanniDepthMetrics,
+  type GibsonLanniDepthMetricsOptions,
+} from "./gibson-lanni-depth-metrics";
 import { createGibsonLanniModel, type GibsonLanniModel } from "./gibson-lanni-model";
 import type { GibsonLanniParams } from "./gibson-lanni-params";
 

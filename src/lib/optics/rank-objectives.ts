@@ -33,8 +33,14 @@ export interface ObjectiveRanking {
   reason: string;
 }
 
-function usefulDepth(model: GibsonLanniModel, surface: number, limit: number, maxDepthUm: number): number | null {
-  const exceeds = (d: number) => gibsonLanniDepthMetrics(model, d, { lateral: false, sideLobes: false }).axialFwhmUm > limit * surface;
+function usefulDepth(
+  model: GibsonLanniModel,
+  surface: number,
+  limit: number,
+  maxDepthUm: number,
+): number | null {
+  const exceeds = (d: number) =>
+    gibsonLanniDepthMetrics(model, d, { lateral: false, sideLobes: false }).axialFwhmUm > limit * surface;
   let lo = 0;
   let hi = 1;
   while (!exceeds(hi)) {
@@ -73,7 +79,12 @@ function usefulDepth(model: GibsonLanniModel, surface: number, limit: number, ma
  * @example rankObjectives({ objectives, sampleRi: 1.38, wavelengthNm: 520, depthRangeUm: [0, 50] })
  */
 export function rankObjectives(
-  input: { objectives: ObjectiveSpec[]; sampleRi: number; wavelengthNm: number; depthRangeUm: [number, number] },
+  input: {
+    objectives: ObjectiveSpec[];
+    sampleRi: number;
+    wavelengthNm: number;
+    depthRangeUm: [number, number];
+  },
   options: RankObjectivesOptions = {},
 ): ObjectiveRanking[] {
   const { growthLimit = 1.25, maxSearchDepthUm = 300, depthSamples = 5 } = options;
@@ -83,7 +94,8 @@ export function rankObjectives(
   if (!(d0 >= 0 && d1 >= d0 && Number.isFinite(d1))) {
     throw new RangeError(`rankObjectives: depthRangeUm must satisfy 0 ≤ min ≤ max, got [${d0}, ${d1}]`);
   }
-  if (!Number.isInteger(depthSamples) || depthSamples < 2) throw new RangeError(`rankObjectives: depthSamples must be an integer ≥ 2, got ${depthSamples}`);
+  if (!Number.isInteger(depthSamples) || depthSamples < 2)
+    throw new RangeError(`rankObjectives: depthSamples must be an integer ≥ 2, got ${depthSamples}`);
   const entries = objectives.map((objective) => {
     const model = objectiveModel(objective, sampleRi, wavelengthNm);
     const surface = gibsonLanniDepthMetrics(model, 0, { lateral: false, sideLobes: false });
@@ -121,11 +133,14 @@ export function rankObjectives(
         ? `its axial width stays within ${Math.round((growthLimit - 1) * 100)} % of the surface value down to at least ${maxSearchDepthUm} µm`
         : `its axial width grows by ${Math.round((growthLimit - 1) * 100)} % at about ${e.usefulDepthUm.toFixed(1)} µm`;
     const mismatch = Math.abs(o.immersionRi - sampleRi);
-    const match = mismatch < 0.01 ? "immersion matches the sample RI" : `immersion RI ${o.immersionRi} vs sample ${sampleRi} (Δn ${mismatch.toFixed(3)})`;
+    const match =
+      mismatch < 0.01
+        ? "immersion matches the sample RI"
+        : `immersion RI ${o.immersionRi} vs sample ${sampleRi} (Δn ${mismatch.toFixed(3)})`;
     const lead =
       i === 0
         ? "Best choice: the narrowest axial PSF at the deepest planned depth"
-        : `${(((e.deepAxialFwhmUm / best.deepAxialFwhmUm) - 1) * 100).toFixed(0)} % wider axially than the best at depth`;
+        : `${((e.deepAxialFwhmUm / best.deepAxialFwhmUm - 1) * 100).toFixed(0)} % wider axially than the best at depth`;
     const reason =
       `${lead}. NA ${o.na}, ${match}: axial FWHM ${e.deepAxialFwhmUm.toFixed(2)} µm at ${d1} µm ` +
       `(${growth} % over its surface value), ${Math.round(e.deepPeakRelative * 100)} % of the ideal peak there; ${useful}.`;

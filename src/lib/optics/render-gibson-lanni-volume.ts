@@ -70,21 +70,31 @@ export function renderGibsonLanniVolume(
   const model = createGibsonLanniModel(modelOrParams);
   const { shape, voxelSizeUm, particleDepthUm, firstPlaneNominalFocusUm, radialOversampling = 4 } = options;
   const [nz, ny, nx] = shape;
-  for (const [name, value] of [["nz", nz], ["ny", ny], ["nx", nx]] as const) {
+  for (const [name, value] of [
+    ["nz", nz],
+    ["ny", ny],
+    ["nx", nx],
+  ] as const) {
     if (!Number.isInteger(value) || value < 1) {
       throw new RangeError(`renderGibsonLanniVolume: shape ${name} must be an integer ≥ 1, got ${value}`);
     }
   }
   for (const axis of ["x", "y", "z"] as const) {
     if (!(voxelSizeUm[axis] > 0) || !Number.isFinite(voxelSizeUm[axis])) {
-      throw new RangeError(`renderGibsonLanniVolume: voxelSizeUm.${axis} must be > 0, got ${voxelSizeUm[axis]}`);
+      throw new RangeError(
+        `renderGibsonLanniVolume: voxelSizeUm.${axis} must be > 0, got ${voxelSizeUm[axis]}`,
+      );
     }
   }
   if (!Number.isFinite(particleDepthUm) || particleDepthUm < 0) {
-    throw new RangeError(`renderGibsonLanniVolume: particleDepthUm must be finite and ≥ 0, got ${particleDepthUm}`);
+    throw new RangeError(
+      `renderGibsonLanniVolume: particleDepthUm must be finite and ≥ 0, got ${particleDepthUm}`,
+    );
   }
   if (!(radialOversampling >= 1)) {
-    throw new RangeError(`renderGibsonLanniVolume: radialOversampling must be ≥ 1, got ${radialOversampling}`);
+    throw new RangeError(
+      `renderGibsonLanniVolume: radialOversampling must be ≥ 1, got ${radialOversampling}`,
+    );
   }
   const { centerPx = { x: (nx - 1) / 2, y: (ny - 1) / 2 } } = options;
   const nominalFocusUm = new Float64Array(nz);
@@ -103,7 +113,11 @@ export function renderGibsonLanniVolume(
     for (const k of [0, nz - 1]) {
       nodeCount = Math.max(
         nodeCount,
-        gibsonLanniNodeCount(model, { radiusUm: maxRadiusUm, focusOffsetUm: -nominalFocusUm[k], particleDepthUm }),
+        gibsonLanniNodeCount(model, {
+          radiusUm: maxRadiusUm,
+          focusOffsetUm: -nominalFocusUm[k],
+          particleDepthUm,
+        }),
       );
     }
   }
@@ -125,7 +139,8 @@ export function renderGibsonLanniVolume(
   const radial = new Float64Array(nr);
   for (let k = 0; k < nz; k++) {
     const focusOffsetUm = -nominalFocusUm[k];
-    for (let i = 0; i < nr; i++) radial[i] = gibsonLanniSum(table, amplitudes[i], focusOffsetUm, particleDepthUm);
+    for (let i = 0; i < nr; i++)
+      radial[i] = gibsonLanniSum(table, amplitudes[i], focusOffsetUm, particleDepthUm);
     const offset = k * ny * nx;
     for (let p = 0; p < ny * nx; p++) {
       const u = radialIndex[p];

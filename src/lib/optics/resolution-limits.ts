@@ -93,7 +93,11 @@ export function resolutionLimits(options: { wavelengthNm: number; na: number }):
  * @returns midpoint / peak ratio (dimensionless)
  * @example twoPointMidpointRatio({ separationNm: 217.8, wavelengthNm: 500, na: 1.4 }) // 0.735
  */
-export function twoPointMidpointRatio(options: { separationNm: number; wavelengthNm: number; na: number }): number {
+export function twoPointMidpointRatio(options: {
+  separationNm: number;
+  wavelengthNm: number;
+  na: number;
+}): number {
   const { separationNm, wavelengthNm, na } = options;
   checkPositive("wavelengthNm", wavelengthNm);
   checkPositive("na", na);

@@ -1,7 +1,7 @@
 /** Two-sided 95 % Student t quantiles t₀.₉₇₅(ν) for ν = 1…30 (standard table values). */
 const T975 = [
-  12.706, 4.303, 3.182, 2.776, 2.571, 2.447, 2.365, 2.306, 2.262, 2.228, 2.201, 2.179, 2.16, 2.145, 2.131, 2.12, 2.11,
-  2.101, 2.093, 2.086, 2.08, 2.074, 2.069, 2.064, 2.06, 2.056, 2.052, 2.048, 2.045, 2.042,
+  12.706, 4.303, 3.182, 2.776, 2.571, 2.447, 2.365, 2.306, 2.262, 2.228, 2.201, 2.179, 2.16, 2.145, 2.131,
+  2.12, 2.11, 2.101, 2.093, 2.086, 2.08, 2.074, 2.069, 2.064, 2.06, 2.056, 2.052, 2.048, 2.045, 2.042,
 ];
 
 /**
@@ -19,7 +19,8 @@ const T975 = [
  * @example studentT975(10) // 2.228
  */
 export function studentT975(degreesOfFreedom: number): number {
-  if (!(degreesOfFreedom >= 1)) throw new RangeError(`studentT975: degreesOfFreedom must be ≥ 1, got ${degreesOfFreedom}`);
+  if (!(degreesOfFreedom >= 1))
+    throw new RangeError(`studentT975: degreesOfFreedom must be ≥ 1, got ${degreesOfFreedom}`);
   const nu = Math.floor(degreesOfFreedom);
   if (nu <= 30) return T975[nu - 1];
   const z = 1.959964;

@@ -62,15 +62,33 @@ export const THEORETICAL_FWHM_VERSION = "1.0.0";
  * @example theoreticalFwhm({ modality: "widefield", na: 1.4, immersionRi: 1.518, emissionWavelengthNm: 520 })
  */
 export function theoreticalFwhm(input: TheoreticalFwhmInput): TheoreticalFwhm {
-  const { modality, immersionRi, emissionWavelengthNm, excitationWavelengthNm, pinholeAu = 1, sampleRi, lightSheetFwhmNm } = input;
+  const {
+    modality,
+    immersionRi,
+    emissionWavelengthNm,
+    excitationWavelengthNm,
+    pinholeAu = 1,
+    sampleRi,
+    lightSheetFwhmNm,
+  } = input;
   const notes: string[] = [];
   const { na, capped } = effectiveNa(input.na, immersionRi, sampleRi);
-  if (capped) notes.push(`NA ${input.na} capped at the sample RI ${sampleRi} (rays beyond are evanescent in the sample).`);
-  notes.push("Scalar, aberration-free, matched RI; measured values 10–30 % above theory are usual for good systems.");
+  if (capped)
+    notes.push(
+      `NA ${input.na} capped at the sample RI ${sampleRi} (rays beyond are evanescent in the sample).`,
+    );
+  notes.push(
+    "Scalar, aberration-free, matched RI; measured values 10–30 % above theory are usual for good systems.",
+  );
   switch (modality) {
     case "widefield": {
       const w = widefieldFwhm({ na, immersionRi, wavelengthNm: emissionWavelengthNm });
-      return { ...w, formulaId: "widefield-airy-nonparaxial-axial", formulaVersion: THEORETICAL_FWHM_VERSION, notes };
+      return {
+        ...w,
+        formulaId: "widefield-airy-nonparaxial-axial",
+        formulaVersion: THEORETICAL_FWHM_VERSION,
+        notes,
+      };
     }
     case "confocal":
     case "spinning-disk": {
@@ -79,10 +97,19 @@ export function theoreticalFwhm(input: TheoreticalFwhmInput): TheoreticalFwhm {
         ex = emissionWavelengthNm;
         notes.push("No excitation wavelength given: the emission wavelength was used for excitation.");
       }
-      if (modality === "spinning-disk") notes.push("Spinning disk treated as a confocal; pinhole crosstalk is ignored.");
-      const c = confocalFwhm({ na, immersionRi, excitationWavelengthNm: ex, emissionWavelengthNm, pinholeAu });
+      if (modality === "spinning-disk")
+        notes.push("Spinning disk treated as a confocal; pinhole crosstalk is ignored.");
+      const c = confocalFwhm({
+        na,
+        immersionRi,
+        excitationWavelengthNm: ex,
+        emissionWavelengthNm,
+        pinholeAu,
+      });
       if (c.largePinholeWeight > 0 && c.largePinholeWeight < 1) {
-        notes.push(`Pinhole ${pinholeAu} AU lies between 0.25 and 1 AU: widths blended smoothly (weight ${c.largePinholeWeight.toFixed(3)} on the large-pinhole limit).`);
+        notes.push(
+          `Pinhole ${pinholeAu} AU lies between 0.25 and 1 AU: widths blended smoothly (weight ${c.largePinholeWeight.toFixed(3)} on the large-pinhole limit).`,
+        );
       }
       return {
         lateralNm: c.lateralNm,
@@ -102,13 +129,27 @@ export function theoreticalFwhm(input: TheoreticalFwhmInput): TheoreticalFwhm {
     case "light-sheet": {
       const w = widefieldFwhm({ na, immersionRi, wavelengthNm: emissionWavelengthNm });
       if (lightSheetFwhmNm === undefined) {
-        notes.push("Light sheet not specified: the axial width is the detection (widefield) value, an upper bound.");
-        return { ...w, formulaId: "light-sheet-detection-only", formulaVersion: THEORETICAL_FWHM_VERSION, notes };
+        notes.push(
+          "Light sheet not specified: the axial width is the detection (widefield) value, an upper bound.",
+        );
+        return {
+          ...w,
+          formulaId: "light-sheet-detection-only",
+          formulaVersion: THEORETICAL_FWHM_VERSION,
+          notes,
+        };
       }
-      if (!(lightSheetFwhmNm > 0)) throw new RangeError(`lightSheetFwhmNm must be > 0, got ${lightSheetFwhmNm}`);
+      if (!(lightSheetFwhmNm > 0))
+        throw new RangeError(`lightSheetFwhmNm must be > 0, got ${lightSheetFwhmNm}`);
       const axialNm = 1 / Math.sqrt(1 / (w.axialNm * w.axialNm) + 1 / (lightSheetFwhmNm * lightSheetFwhmNm));
       notes.push("Axial width combines detection and a Gaussian sheet: 1/F² = 1/F_det² + 1/F_sheet².");
-      return { lateralNm: w.lateralNm, axialNm, formulaId: "light-sheet-gaussian-sheet", formulaVersion: THEORETICAL_FWHM_VERSION, notes };
+      return {
+        lateralNm: w.lateralNm,
+        axialNm,
+        formulaId: "light-sheet-gaussian-sheet",
+        formulaVersion: THEORETICAL_FWHM_VERSION,
+        notes,
+      };
     }
     default: {
       const never: never = modality;

@@ -21,11 +21,16 @@ export const ZIPFEL_FWHM_PER_OMEGA = 2 * Math.sqrt(Math.LN2);
  * @throws RangeError for invalid inputs
  * @example twoPhotonFwhm({ na: 1.0, immersionRi: 1.33, excitationWavelengthNm: 920 }) // { lateralNm: 352.0, axialNm: 1271.8 }
  */
-export function twoPhotonFwhm(options: { na: number; immersionRi: number; excitationWavelengthNm: number }): FwhmNm {
+export function twoPhotonFwhm(options: {
+  na: number;
+  immersionRi: number;
+  excitationWavelengthNm: number;
+}): FwhmNm {
   const { na, immersionRi, excitationWavelengthNm: lambda } = options;
   checkApertureAndIndex(na, immersionRi);
   checkPositive("excitationWavelengthNm", lambda);
-  const omegaXy = na <= 0.7 ? (0.32 * lambda) / (Math.SQRT2 * na) : (0.325 * lambda) / (Math.SQRT2 * na ** 0.91);
+  const omegaXy =
+    na <= 0.7 ? (0.32 * lambda) / (Math.SQRT2 * na) : (0.325 * lambda) / (Math.SQRT2 * na ** 0.91);
   const omegaZ = (0.532 * lambda) / Math.SQRT2 / axialApertureTerm(na, immersionRi);
   return { lateralNm: ZIPFEL_FWHM_PER_OMEGA * omegaXy, axialNm: ZIPFEL_FWHM_PER_OMEGA * omegaZ };
 }

@@ -24,7 +24,11 @@ export interface CauchyTwoTerm {
 export function cauchyFromAbbe(
   referenceRi: number,
   abbeNumber: number,
-  lines: { referenceNm: number; shortNm: number; longNm: number } = { referenceNm: 546.07, shortNm: 479.99, longNm: 643.85 },
+  lines: { referenceNm: number; shortNm: number; longNm: number } = {
+    referenceNm: 546.07,
+    shortNm: 479.99,
+    longNm: 643.85,
+  },
 ): CauchyTwoTerm {
   if (!(abbeNumber > 0)) throw new RangeError(`cauchyFromAbbe: abbeNumber must be > 0, got ${abbeNumber}`);
   const inv2 = (nm: number) => 1 / (nm / 1000) ** 2;

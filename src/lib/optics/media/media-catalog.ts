@@ -10,7 +10,11 @@ export const MERCURY_E_NM = 546.07;
 /** Cauchy b of water in the visible, µm² (from IAPWS 20 °C: n(486.1) − n(656.3) = 0.00598, computed here). */
 const WATER_CAUCHY_B = 0.00313;
 
-function cauchyThrough(referenceRi: number, referenceNm: number, b: number): { kind: "cauchy"; a: number; b: number; c: number } {
+function cauchyThrough(
+  referenceRi: number,
+  referenceNm: number,
+  b: number,
+): { kind: "cauchy"; a: number; b: number; c: number } {
   return { kind: "cauchy", a: referenceRi - b / (referenceNm / 1000) ** 2, b, c: 0 };
 }
 
@@ -32,9 +36,13 @@ const STATIC_MEDIA: Medium[] = [
     referenceTemperatureC: 20,
     dispersion: { kind: "iapws-r9-97" },
     dnDtPerK: -0.98e-4,
-    source: "IAPWS R9-97 (1997) with IAPWS-95 densities; converted from vacuum to air-relative by n_air (METHODS §9.1)",
+    source:
+      "IAPWS R9-97 (1997) with IAPWS-95 densities; converted from vacuum to air-relative by n_air (METHODS §9.1)",
     evidence: "confirmed",
-    notes: ["Wavelength and temperature dependent by formula; 0–50 °C, 200–1100 nm.", "dnDtPerK is indicative only (20–25 °C)."],
+    notes: [
+      "Wavelength and temperature dependent by formula; 0–50 °C, 200–1100 nm.",
+      "dnDtPerK is indicative only (20–25 °C).",
+    ],
   },
   {
     id: "immersion-oil",
@@ -45,9 +53,13 @@ const STATIC_MEDIA: Medium[] = [
     referenceTemperatureC: 23,
     dispersion: { kind: "cauchy", a: oil.a, b: oil.b, c: 0 },
     dnDtPerK: -4e-4,
-    source: "ISO 8036: n_e = 1.5180 ± 0.0005 at 23 °C, ν_e = 44 ± 3; two-term Cauchy derived from both (METHODS §9.2)",
+    source:
+      "ISO 8036: n_e = 1.5180 ± 0.0005 at 23 °C, ν_e = 44 ± 3; two-term Cauchy derived from both (METHODS §9.2)",
     evidence: "confirmed",
-    notes: ["Nominal model: real oils deviate by up to the ISO tolerance.", "dn/dT −4×10⁻⁴ K⁻¹ is from memory (magnitude supported by ITC Vol. C)."],
+    notes: [
+      "Nominal model: real oils deviate by up to the ISO tolerance.",
+      "dn/dT −4×10⁻⁴ K⁻¹ is from memory (magnitude supported by ITC Vol. C).",
+    ],
   },
   {
     id: "silicone-oil",
@@ -71,9 +83,13 @@ const STATIC_MEDIA: Medium[] = [
     referenceTemperatureC: 25,
     dispersion: { kind: "cauchy", a: 1.45797, b: 0.00598, c: -0.00036 },
     dnDtPerK: -2.2e-4,
-    source: "Rheims, Köser & Wriedt, Meas Sci Technol 8:601 (1997), 25 °C, 589–1050 nm; dn/dT from ITC Vol. C Table 3.3.2.1 (METHODS §9.4)",
+    source:
+      "Rheims, Köser & Wriedt, Meas Sci Technol 8:601 (1997), 25 °C, 589–1050 nm; dn/dT from ITC Vol. C Table 3.3.2.1 (METHODS §9.4)",
     evidence: "confirmed",
-    notes: ["Hygroscopic: the real index drifts down as it takes up water.", "Cauchy fitted from 589 nm upward; bluer values are extrapolated."],
+    notes: [
+      "Hygroscopic: the real index drifts down as it takes up water.",
+      "Cauchy fitted from 589 nm upward; bluer values are extrapolated.",
+    ],
   },
   {
     id: "cover-glass",
@@ -84,9 +100,13 @@ const STATIC_MEDIA: Medium[] = [
     referenceTemperatureC: 23,
     dispersion: { kind: "cauchy", a: coverGlass.a, b: coverGlass.b, c: 0 },
     dnDtPerK: 0,
-    source: "ISO 8255-1: n_e = 1.5255 ± 0.0015, ν_e = 56 ± 2, 0.17 mm; two-term Cauchy from both (METHODS §9.3)",
+    source:
+      "ISO 8255-1: n_e = 1.5255 ± 0.0015, ν_e = 56 ± 2, 0.17 mm; two-term Cauchy from both (METHODS §9.3)",
     evidence: "from memory",
-    notes: ["The ISO values could not be opened; an older spec quotes n_D 1.523 ± 0.005 (confirmed).", "Glass dn/dT (~10⁻⁶ K⁻¹) neglected."],
+    notes: [
+      "The ISO values could not be opened; an older spec quotes n_D 1.523 ± 0.005 (confirmed).",
+      "Glass dn/dT (~10⁻⁶ K⁻¹) neglected.",
+    ],
   },
   {
     id: "tde",
@@ -97,7 +117,8 @@ const STATIC_MEDIA: Medium[] = [
     referenceTemperatureC: 23,
     dispersion: cauchyThrough(1.521, SODIUM_D_NM, 0.0055),
     dnDtPerK: -3e-4,
-    source: "Staudt et al., Microsc Res Tech 70:1 (2007) (tunable 1.33–1.52, confirmed); pure value 1.521 (METHODS §9.5)",
+    source:
+      "Staudt et al., Microsc Res Tech 70:1 (2007) (tunable 1.33–1.52, confirmed); pure value 1.521 (METHODS §9.5)",
     evidence: "from memory",
     notes: ["Dispersion and dn/dT are estimates."],
   },
@@ -170,18 +191,40 @@ const STATIC_MEDIA: Medium[] = [
 
 /** Glycerol–water n_D at 20 °C vs mass % glycerol (classic handbook table, METHODS §9.4, from memory). */
 export const GLYCEROL_WATER_TABLE: ReadonlyArray<readonly [number, number]> = [
-  [0, 1.333], [10, 1.3448], [20, 1.3575], [30, 1.3707], [40, 1.3841], [50, 1.3981],
-  [60, 1.4124], [70, 1.4269], [80, 1.4413], [90, 1.4558], [100, 1.474],
+  [0, 1.333],
+  [10, 1.3448],
+  [20, 1.3575],
+  [30, 1.3707],
+  [40, 1.3841],
+  [50, 1.3981],
+  [60, 1.4124],
+  [70, 1.4269],
+  [80, 1.4413],
+  [90, 1.4558],
+  [100, 1.474],
 ];
 
 /** Sucrose solution n_D at 20 °C vs mass % (°Brix); 0 % = 1.33299 confirmed, the rest from memory. */
 export const SUCROSE_TABLE: ReadonlyArray<readonly [number, number]> = [
-  [0, 1.33299], [10, 1.34783], [20, 1.36384], [30, 1.38115], [40, 1.39986], [50, 1.42009],
-  [60, 1.44193], [70, 1.46546], [80, 1.49071],
+  [0, 1.33299],
+  [10, 1.34783],
+  [20, 1.36384],
+  [30, 1.38115],
+  [40, 1.39986],
+  [50, 1.42009],
+  [60, 1.44193],
+  [70, 1.46546],
+  [80, 1.49071],
 ];
 
-const glycerolWater = createMonotoneInterpolator(GLYCEROL_WATER_TABLE.map((r) => r[0]), GLYCEROL_WATER_TABLE.map((r) => r[1]));
-const sucrose = createMonotoneInterpolator(SUCROSE_TABLE.map((r) => r[0]), SUCROSE_TABLE.map((r) => r[1]));
+const glycerolWater = createMonotoneInterpolator(
+  GLYCEROL_WATER_TABLE.map((r) => r[0]),
+  GLYCEROL_WATER_TABLE.map((r) => r[1]),
+);
+const sucrose = createMonotoneInterpolator(
+  SUCROSE_TABLE.map((r) => r[0]),
+  SUCROSE_TABLE.map((r) => r[1]),
+);
 
 function checkPercent(name: string, value: number, max: number): void {
   if (!(value >= 0 && value <= max)) throw new RangeError(`${name} must lie in [0, ${max}] %, got ${value}`);
@@ -211,11 +254,18 @@ export function glycerolWaterMedium(massPercent: number): Medium {
     referenceWavelengthNm: SODIUM_D_NM,
     referenceRi: glycerolWater(massPercent),
     referenceTemperatureC: 20,
-    dispersion: { kind: "mixture-table", referenceRiAtComposition: glycerolWater(massPercent), dispersionBUm2: WATER_CAUCHY_B * (1 - w) + 0.00598 * w },
+    dispersion: {
+      kind: "mixture-table",
+      referenceRiAtComposition: glycerolWater(massPercent),
+      dispersionBUm2: WATER_CAUCHY_B * (1 - w) + 0.00598 * w,
+    },
     dnDtPerK: -1e-4 * (1 - w) - 2.2e-4 * w,
     source: "Handbook n_D table vs mass % at 20 °C, monotone spline (METHODS §9.4)",
     evidence: "from memory",
-    notes: ["Glycerol is hygroscopic; the real index drifts.", "Dispersion and dn/dT mass-weighted (approximation)."],
+    notes: [
+      "Glycerol is hygroscopic; the real index drifts.",
+      "Dispersion and dn/dT mass-weighted (approximation).",
+    ],
   };
 }
 
@@ -241,7 +291,11 @@ export function tdeWaterMedium(volumePercent: number): Medium {
     referenceWavelengthNm: SODIUM_D_NM,
     referenceRi: n,
     referenceTemperatureC: 23,
-    dispersion: { kind: "mixture-table", referenceRiAtComposition: n, dispersionBUm2: WATER_CAUCHY_B * (1 - f) + 0.0055 * f },
+    dispersion: {
+      kind: "mixture-table",
+      referenceRiAtComposition: n,
+      dispersionBUm2: WATER_CAUCHY_B * (1 - f) + 0.0055 * f,
+    },
     dnDtPerK: -1e-4 * (1 - f) - 3e-4 * f,
     source: "Linear in volume fraction between water and pure TDE (Staudt et al. 2007 range; METHODS §9.5)",
     evidence: "from memory",
@@ -270,7 +324,11 @@ export function sucroseSolutionMedium(massPercent: number): Medium {
     referenceWavelengthNm: SODIUM_D_NM,
     referenceRi: n,
     referenceTemperatureC: 20,
-    dispersion: { kind: "mixture-table", referenceRiAtComposition: n, dispersionBUm2: WATER_CAUCHY_B * (1 - w) + 0.0045 * w },
+    dispersion: {
+      kind: "mixture-table",
+      referenceRiAtComposition: n,
+      dispersionBUm2: WATER_CAUCHY_B * (1 - w) + 0.0045 * w,
+    },
     dnDtPerK: -1e-4 * (1 - w) - 2e-4 * w,
     source: "Sucrose n_D table at 20 °C (ICUMSA start value confirmed; METHODS §9.5)",
     evidence: "from memory",

@@ -31,7 +31,10 @@ export interface RefractiveIndexConditions {
  * @throws RangeError for an unknown id or a non-positive wavelength
  * @example refractiveIndex("water", { wavelengthNm: 589.3, temperatureC: 20 }) // 1.33299
  */
-export function refractiveIndex(medium: Medium | CustomMedium | string, conditions: RefractiveIndexConditions): number {
+export function refractiveIndex(
+  medium: Medium | CustomMedium | string,
+  conditions: RefractiveIndexConditions,
+): number {
   const { wavelengthNm, temperatureC } = conditions;
   if (!(wavelengthNm > 0) || !Number.isFinite(wavelengthNm)) {
     throw new RangeError(`refractiveIndex: wavelengthNm must be > 0, got ${wavelengthNm}`);
@@ -47,8 +50,15 @@ export function refractiveIndex(medium: Medium | CustomMedium | string, conditio
   } else m = medium;
   const lambdaUm = wavelengthNm / 1000;
   if ("kind" in m && m.kind === "custom") {
-    const { referenceRi, referenceWavelengthNm = 589.3, cauchyBUm2 = 0, dnDtPerK = 0, referenceTemperatureC = 23 } = m;
-    if (!(referenceRi >= 1)) throw new RangeError(`refractiveIndex: custom referenceRi must be ≥ 1, got ${referenceRi}`);
+    const {
+      referenceRi,
+      referenceWavelengthNm = 589.3,
+      cauchyBUm2 = 0,
+      dnDtPerK = 0,
+      referenceTemperatureC = 23,
+    } = m;
+    if (!(referenceRi >= 1))
+      throw new RangeError(`refractiveIndex: custom referenceRi must be ≥ 1, got ${referenceRi}`);
     return (
       referenceRi +
       cauchyBUm2 * (1 / lambdaUm ** 2 - 1 / (referenceWavelengthNm / 1000) ** 2) +
@@ -60,7 +70,10 @@ export function refractiveIndex(medium: Medium | CustomMedium | string, conditio
   const d = lib.dispersion;
   switch (d.kind) {
     case "iapws-r9-97":
-      return waterRefractiveIndexVacuum(wavelengthNm, temperatureC) / airRefractiveIndex(wavelengthNm, temperatureC);
+      return (
+        waterRefractiveIndexVacuum(wavelengthNm, temperatureC) /
+        airRefractiveIndex(wavelengthNm, temperatureC)
+      );
     case "cauchy":
       return d.a + d.b / lambdaUm ** 2 + d.c / lambdaUm ** 4 + lib.dnDtPerK * dT;
     case "mixture-table":

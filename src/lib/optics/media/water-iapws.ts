@@ -1,7 +1,10 @@
 import { createMonotoneInterpolator } from "../monotone-interpolator";
 
 /** IAPWS R9-97 coefficients a₀…a₇ (METHODS §9.1, confirmed in several implementations). */
-const A = [0.244257733, 9.74634476e-3, -3.73234996e-3, 2.68678472e-4, 1.58920570e-3, 2.45934259e-3, 0.90070492, -1.66626219e-2];
+const A = [
+  0.244257733, 9.74634476e-3, -3.73234996e-3, 2.68678472e-4, 1.5892057e-3, 2.45934259e-3, 0.90070492,
+  -1.66626219e-2,
+];
 const LAMBDA_UV = 0.229202;
 const LAMBDA_IR = 5.432937;
 
@@ -61,9 +64,15 @@ export function waterDensityKgM3(temperatureC: number): number {
  * @throws RangeError for a wavelength outside 200–1100 nm
  * @example waterRefractiveIndexVacuum(589.3, 25, 997.047435) // 1.33285819
  */
-export function waterRefractiveIndexVacuum(wavelengthNm: number, temperatureC: number, densityKgM3?: number): number {
+export function waterRefractiveIndexVacuum(
+  wavelengthNm: number,
+  temperatureC: number,
+  densityKgM3?: number,
+): number {
   if (!(wavelengthNm >= 200 && wavelengthNm <= 1100)) {
-    throw new RangeError(`waterRefractiveIndexVacuum: wavelengthNm must lie in [200, 1100] nm, got ${wavelengthNm}`);
+    throw new RangeError(
+      `waterRefractiveIndexVacuum: wavelengthNm must lie in [200, 1100] nm, got ${wavelengthNm}`,
+    );
   }
   const rho = (densityKgM3 ?? waterDensityKgM3(temperatureC)) / 1000;
   const t = (temperatureC + 273.15) / 273.15;

@@ -10,8 +10,20 @@ const objectives: ObjectiveSpec[] = [
 describe("plannerRows", () => {
   it("returns the public planner rows for oil NA 1.3 into water", () => {
     const objective = { id: "o", name: "Oil 1.3", na: 1.3, immersionRi: 1.518, coverslipRi: 1.518 };
-    const rows = plannerRows({ objective, sampleRi: 1.333, wavelengthNm: 520, depthsUm: [0, 12.233, 24.004] });
-    expect(Object.keys(rows[0]).sort()).toEqual(["actualDepthUm", "axialFwhmUm", "depthUm", "focalShiftFactor", "lateralFwhmUm", "peakRelative"]);
+    const rows = plannerRows({
+      objective,
+      sampleRi: 1.333,
+      wavelengthNm: 520,
+      depthsUm: [0, 12.233, 24.004],
+    });
+    expect(Object.keys(rows[0]).sort()).toEqual([
+      "actualDepthUm",
+      "axialFwhmUm",
+      "depthUm",
+      "focalShiftFactor",
+      "lateralFwhmUm",
+      "peakRelative",
+    ]);
     // Source: METHODS.md §4.3 table (GL computed here): nominal 12.233 µm ↔ actual 10 µm, 24.004 ↔ 20 µm.
     expect(rows[1].actualDepthUm).toBeCloseToAbs(10, 0.05);
     expect(rows[2].actualDepthUm).toBeCloseToAbs(20, 0.05);
@@ -30,7 +42,9 @@ describe("plannerRows", () => {
   });
 
   it("rejects negative depths", () => {
-    expect(() => plannerRows({ objective: objectives[0], sampleRi: 1.38, wavelengthNm: 520, depthsUm: [-1] })).toThrow(/depthsUm\[0\] must be finite and ≥ 0, got -1/);
+    expect(() =>
+      plannerRows({ objective: objectives[0], sampleRi: 1.38, wavelengthNm: 520, depthsUm: [-1] }),
+    ).toThrow(/depthsUm\[0\] must be finite and ≥ 0, got -1/);
   });
 });
 
@@ -45,7 +59,8 @@ describe("rankObjectives", () => {
       expect(r.reason).toMatch(/axial FWHM/);
       expect(r.deepAxialFwhmUm).toBeGreaterThan(r.surfaceAxialFwhmUm);
     }
-    for (let i = 1; i < ranking.length; i++) expect(ranking[i].deepAxialFwhmUm).toBeGreaterThanOrEqual(ranking[i - 1].deepAxialFwhmUm * 0.95);
+    for (let i = 1; i < ranking.length; i++)
+      expect(ranking[i].deepAxialFwhmUm).toBeGreaterThanOrEqual(ranking[i - 1].deepAxialFwhmUm * 0.95);
     const oil = ranking.find((r) => r.objectiveId === "oil")!;
     // The useful depth really is the 25 % growth point (and the oil lens into 1.38 loses it within a few µm).
     expect(oil.usefulDepthUm).not.toBeNull();
@@ -54,7 +69,12 @@ describe("rankObjectives", () => {
 
   it("reports no useful-depth limit for a matched pair", () => {
     const ranking = rankObjectives(
-      { objectives: [{ id: "w", name: "Water", na: 1.2, immersionRi: 1.333 }], sampleRi: 1.333, wavelengthNm: 520, depthRangeUm: [0, 30] },
+      {
+        objectives: [{ id: "w", name: "Water", na: 1.2, immersionRi: 1.333 }],
+        sampleRi: 1.333,
+        wavelengthNm: 520,
+        depthRangeUm: [0, 30],
+      },
       { maxSearchDepthUm: 100 },
     );
     expect(ranking[0].usefulDepthUm).toBeNull();
@@ -62,7 +82,11 @@ describe("rankObjectives", () => {
   });
 
   it("rejects an empty list and a reversed range", () => {
-    expect(() => rankObjectives({ objectives: [], sampleRi: 1.38, wavelengthNm: 520, depthRangeUm: [0, 10] })).toThrow(/must not be empty/);
-    expect(() => rankObjectives({ objectives, sampleRi: 1.38, wavelengthNm: 520, depthRangeUm: [10, 0] })).toThrow(/depthRangeUm/);
+    expect(() =>
+      rankObjectives({ objectives: [], sampleRi: 1.38, wavelengthNm: 520, depthRangeUm: [0, 10] }),
+    ).toThrow(/must not be empty/);
+    expect(() =>
+      rankObjectives({ objectives, sampleRi: 1.38, wavelengthNm: 520, depthRangeUm: [10, 0] }),
+    ).toThrow(/depthRangeUm/);
   });
 });

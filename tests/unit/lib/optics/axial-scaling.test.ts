@@ -17,7 +17,9 @@ describe("axialScalingFactors", () => {
   });
   it("marginal at NA 1.2 and the air → water compression", () => {
     // Source: METHODS.md check #27 (Visser 1992 formula).
-    expect(axialScalingFactors({ na: 1.2, immersionRi: 1.518, sampleRi: 1.333 }).marginal.factor).toBeCloseToAbs(0.6243, 1e-4);
+    expect(
+      axialScalingFactors({ na: 1.2, immersionRi: 1.518, sampleRi: 1.333 }).marginal.factor,
+    ).toBeCloseToAbs(0.6243, 1e-4);
     // Source: METHODS.md check #29 (computed here): air → water NA 0.95 RMS-optimal 1.6620.
     const air = axialScalingFactors({ na: 0.95, immersionRi: 1, sampleRi: 1.333 });
     expect(air.rmsOptimal.factor).toBeCloseToAbs(1.662, 1e-4);
@@ -42,7 +44,13 @@ describe("axialScalingFactors", () => {
 });
 
 describe("makeNominalToActualDepth", () => {
-  const oilToWater: GibsonLanniParams = { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333, coverslipRi: 1.518 };
+  const oilToWater: GibsonLanniParams = {
+    na: 1.3,
+    wavelengthNm: 520,
+    immersionRi: 1.518,
+    sampleRi: 1.333,
+    coverslipRi: 1.518,
+  };
   const conv = makeNominalToActualDepth(oilToWater, { maxDepthUm: 60 });
 
   it("converts the GL focal shift both ways", () => {
@@ -77,7 +85,11 @@ describe("makeNominalToActualDepth", () => {
   });
 
   it("rejects bad options", () => {
-    expect(() => makeNominalToActualDepth(oilToWater, { maxDepthUm: 0 })).toThrow(/maxDepthUm must be > 0, got 0/);
-    expect(() => makeNominalToActualDepth(oilToWater, { sampleCount: 2 })).toThrow(/sampleCount must be an integer ≥ 3, got 2/);
+    expect(() => makeNominalToActualDepth(oilToWater, { maxDepthUm: 0 })).toThrow(
+      /maxDepthUm must be > 0, got 0/,
+    );
+    expect(() => makeNominalToActualDepth(oilToWater, { sampleCount: 2 })).toThrow(
+      /sampleCount must be an integer ≥ 3, got 2/,
+    );
   });
 });

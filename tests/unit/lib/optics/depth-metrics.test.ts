@@ -7,7 +7,13 @@ import {
   type GibsonLanniParams,
 } from "@/lib/optics";
 
-const oilToWater: GibsonLanniParams = { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333, coverslipRi: 1.518 };
+const oilToWater: GibsonLanniParams = {
+  na: 1.3,
+  wavelengthNm: 520,
+  immersionRi: 1.518,
+  sampleRi: 1.333,
+  coverslipRi: 1.518,
+};
 
 describe("findGibsonLanniFocus", () => {
   it("finds the oil → water peak at 10 µm", () => {
@@ -45,7 +51,8 @@ describe("gibsonLanniDepthMetrics: oil objective into water", () => {
     // Source: METHODS.md check #24 (computed here): 0.641 µm at 0 and 1.297 µm at 10 µm (nominal z).
     expect(rows[0].axialFwhmUm).toBeCloseToAbs(0.641, 0.01);
     expect(rows[2].axialFwhmUm).toBeCloseToAbs(1.297, 0.01);
-    for (let i = 1; i < rows.length; i++) expect(rows[i].axialFwhmUm).toBeGreaterThan(rows[i - 1].axialFwhmUm);
+    for (let i = 1; i < rows.length; i++)
+      expect(rows[i].axialFwhmUm).toBeGreaterThan(rows[i - 1].axialFwhmUm);
   });
 
   it("gives the peak loss with depth", () => {
@@ -73,7 +80,10 @@ describe("gibsonLanniDepthMetrics: oil objective into water", () => {
 
 describe("gibsonLanniDepthMetrics: other pairs", () => {
   it("air NA 0.95 → water: lobes flip to the near side, ζ > 1", () => {
-    const air = gibsonLanniDepthMetrics({ na: 0.95, wavelengthNm: 520, immersionRi: 1, sampleRi: 1.333, coverslipRi: 1.5255 }, 10);
+    const air = gibsonLanniDepthMetrics(
+      { na: 0.95, wavelengthNm: 520, immersionRi: 1, sampleRi: 1.333, coverslipRi: 1.5255 },
+      10,
+    );
     // Source: METHODS.md check #25 (computed here): 0.032 far / 0.349 near.
     expect(air.sideLobeFar).toBeCloseToAbs(0.032, 0.01);
     expect(air.sideLobeNear).toBeCloseToAbs(0.349, 0.01);
@@ -98,10 +108,18 @@ describe("gibsonLanniDepthMetrics: other pairs", () => {
 
   it("reproduces the other METHODS §8 side-lobe rows", () => {
     // Source: METHODS.md §8 table (computed here): oil NA 1.4 → 1.45 at 10 µm 0.202/0.017; silicone NA 1.3 → 1.38 at 20 µm 0.176/0.020.
-    const oil = gibsonLanniDepthMetrics({ na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.45 }, 10, { lateral: false });
+    const oil = gibsonLanniDepthMetrics(
+      { na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.45 },
+      10,
+      { lateral: false },
+    );
     expect(oil.sideLobeFar).toBeCloseToAbs(0.202, 0.01);
     expect(oil.sideLobeNear).toBeCloseToAbs(0.017, 0.01);
-    const silicone = gibsonLanniDepthMetrics({ na: 1.3, wavelengthNm: 520, immersionRi: 1.406, sampleRi: 1.38 }, 20, { lateral: false });
+    const silicone = gibsonLanniDepthMetrics(
+      { na: 1.3, wavelengthNm: 520, immersionRi: 1.406, sampleRi: 1.38 },
+      20,
+      { lateral: false },
+    );
     expect(silicone.sideLobeFar).toBeCloseToAbs(0.176, 0.01);
     expect(silicone.sideLobeNear).toBeCloseToAbs(0.02, 0.01);
     // Source: METHODS.md §4.3 and §5 tables (computed here): ζ 0.917 / 0.961, peak 0.554 / 0.633.
@@ -113,10 +131,22 @@ describe("gibsonLanniDepthMetrics: other pairs", () => {
 
   it("water NA 1.2 → 1.38 and a coverslip error on a water lens", () => {
     // Source: METHODS.md check #32 (computed here): peak 0.666 at 20 µm.
-    expect(gibsonLanniDepthMetrics({ na: 1.2, wavelengthNm: 520, immersionRi: 1.333, sampleRi: 1.38 }, 20, { lateral: false }).peakRelative).toBeCloseToAbs(0.666, 0.003);
+    expect(
+      gibsonLanniDepthMetrics({ na: 1.2, wavelengthNm: 520, immersionRi: 1.333, sampleRi: 1.38 }, 20, {
+        lateral: false,
+      }).peakRelative,
+    ).toBeCloseToAbs(0.666, 0.003);
     // Source: METHODS.md check #33 (computed here): coverslip 175 instead of 170 µm, n_g 1.5255, z_p 10 µm → peak 0.8545.
     const cs = gibsonLanniDepthMetrics(
-      { na: 1.2, wavelengthNm: 520, immersionRi: 1.333, sampleRi: 1.333, coverslipRi: 1.5255, coverslipThicknessUm: 175, coverslipThicknessDesignUm: 170 },
+      {
+        na: 1.2,
+        wavelengthNm: 520,
+        immersionRi: 1.333,
+        sampleRi: 1.333,
+        coverslipRi: 1.5255,
+        coverslipThicknessUm: 175,
+        coverslipThicknessDesignUm: 170,
+      },
       10,
       { lateral: false, sideLobes: false },
     );

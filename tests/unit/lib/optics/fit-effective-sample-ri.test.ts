@@ -1,5 +1,11 @@
 import { describe, it, expect } from "vitest";
-import { fitEffectiveSampleRi, judgeDeclaredRi, predictDepthCurve, studentT975, type DepthProfileRow } from "@/lib/optics";
+import {
+  fitEffectiveSampleRi,
+  judgeDeclaredRi,
+  predictDepthCurve,
+  studentT975,
+  type DepthProfileRow,
+} from "@/lib/optics";
 
 /** Seeded linear congruential generator (deterministic noise for the known-truth tests). */
 function makeRng(seed: number): () => number {
@@ -43,9 +49,16 @@ describe("fitEffectiveSampleRi", () => {
   it("recovers tissue RI under a water lens from actual depths with SE weights", () => {
     // Known truth: GL model at n_s = 1.38 (METHODS §4.3 pair "water 1.333 NA 1.2 → 1.38").
     const optics = { na: 1.2, wavelengthNm: 520, immersionRi: 1.333 };
-    const truth = predictDepthCurve({ ...optics, sampleRi: 1.38 }, [5, 10, 20, 30, 40, 50], { sideLobes: false, lateral: false });
+    const truth = predictDepthCurve({ ...optics, sampleRi: 1.38 }, [5, 10, 20, 30, 40, 50], {
+      sideLobes: false,
+      lateral: false,
+    });
     const rng = makeRng(5);
-    const rows = truth.map((t) => ({ depthUm: t.depthUm, axialFwhmUm: t.axialFwhmUm + 0.02 * (rng() - 0.5), axialFwhmSeUm: 0.02 }));
+    const rows = truth.map((t) => ({
+      depthUm: t.depthUm,
+      axialFwhmUm: t.axialFwhmUm + 0.02 * (rng() - 0.5),
+      axialFwhmSeUm: 0.02,
+    }));
     const fit = fitEffectiveSampleRi(rows, { optics, depthKind: "actual" });
     expect(fit.weighted).toBe(true);
     expect(fit.sampleRi).toBeCloseToAbs(1.38, 0.01);
@@ -54,7 +67,11 @@ describe("fitEffectiveSampleRi", () => {
   it("uses the asymmetry sign to pick the side of the immersion RI", () => {
     // METHODS §8: far-side lobes (asymmetry > 0) mean n_s < n_i. Axial broadening alone is two-sided.
     const truth = predictDepthCurve({ ...oil14, sampleRi: 1.47 }, [3, 8, 15, 25]);
-    const rows = truth.map((t) => ({ depthUm: t.depthUm, axialFwhmUm: t.axialFwhmUm, asymmetry: t.sideLobeAsymmetry }));
+    const rows = truth.map((t) => ({
+      depthUm: t.depthUm,
+      axialFwhmUm: t.axialFwhmUm,
+      asymmetry: t.sideLobeAsymmetry,
+    }));
     const fit = fitEffectiveSampleRi(rows, { optics: oil14, depthKind: "actual" });
     expect(fit.sampleRi).toBeLessThan(1.518);
     expect(fit.sampleRi).toBeCloseToAbs(1.47, 0.01);
@@ -63,7 +80,11 @@ describe("fitEffectiveSampleRi", () => {
   it("judges a declared RI against the interval", () => {
     const truth = predictDepthCurve({ ...oil14, sampleRi: 1.45 }, [2, 6, 10, 15, 20], { lateral: false });
     const rng = makeRng(3);
-    const rows = truth.map((t) => ({ depthUm: t.depthUm, axialFwhmUm: t.axialFwhmUm * (1 + 0.02 * (rng() - 0.5)), asymmetry: t.sideLobeAsymmetry }));
+    const rows = truth.map((t) => ({
+      depthUm: t.depthUm,
+      axialFwhmUm: t.axialFwhmUm * (1 + 0.02 * (rng() - 0.5)),
+      asymmetry: t.sideLobeAsymmetry,
+    }));
     const fit = fitEffectiveSampleRi(rows, { optics: oil14, depthKind: "actual" });
     const declaredOil = judgeDeclaredRi(fit, 1.518);
     expect(declaredOil.consistent).toBe(false);
@@ -73,17 +94,25 @@ describe("fitEffectiveSampleRi", () => {
 
   it("gives no interval from a single unweighted row and says so", () => {
     const truth = predictDepthCurve({ ...oil14, sampleRi: 1.45 }, [10], { lateral: false, sideLobes: false });
-    const fit = fitEffectiveSampleRi([{ depthUm: 10, axialFwhmUm: truth[0].axialFwhmUm }], { optics: oil14, depthKind: "actual" }, { minRi: 1.35, maxRi: 1.518 });
+    const fit = fitEffectiveSampleRi(
+      [{ depthUm: 10, axialFwhmUm: truth[0].axialFwhmUm }],
+      { optics: oil14, depthKind: "actual" },
+      { minRi: 1.35, maxRi: 1.518 },
+    );
     expect(Number.isNaN(fit.interval95[0])).toBe(true);
     expect(judgeDeclaredRi(fit, 1.6).message).toMatch(/no interval/);
   });
 
   it("rejects invalid rows", () => {
-    expect(() => fitEffectiveSampleRi([], { optics: oil14, depthKind: "actual" })).toThrow(/rows must not be empty/);
-    expect(() => fitEffectiveSampleRi([{ depthUm: -1, axialFwhmUm: 1 }], { optics: oil14, depthKind: "actual" })).toThrow(
-      /rows\[0\].depthUm must be finite and ≥ 0, got -1/,
+    expect(() => fitEffectiveSampleRi([], { optics: oil14, depthKind: "actual" })).toThrow(
+      /rows must not be empty/,
     );
-    expect(() => fitEffectiveSampleRi([{ depthUm: 1, axialFwhmUm: 0 }], { optics: oil14, depthKind: "actual" })).toThrow(/axialFwhmUm must be > 0/);
+    expect(() =>
+      fitEffectiveSampleRi([{ depthUm: -1, axialFwhmUm: 1 }], { optics: oil14, depthKind: "actual" }),
+    ).toThrow(/rows\[0\].depthUm must be finite and ≥ 0, got -1/);
+    expect(() =>
+      fitEffectiveSampleRi([{ depthUm: 1, axialFwhmUm: 0 }], { optics: oil14, depthKind: "actual" }),
+    ).toThrow(/axialFwhmUm must be > 0/);
   });
 });
 

@@ -10,8 +10,20 @@ import {
   type GibsonLanniParams,
 } from "@/lib/optics";
 
-const matched14: GibsonLanniParams = { na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.518, coverslipRi: 1.518 };
-const oilToWater13: GibsonLanniParams = { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333, coverslipRi: 1.518 };
+const matched14: GibsonLanniParams = {
+  na: 1.4,
+  wavelengthNm: 520,
+  immersionRi: 1.518,
+  sampleRi: 1.518,
+  coverslipRi: 1.518,
+};
+const oilToWater13: GibsonLanniParams = {
+  na: 1.3,
+  wavelengthNm: 520,
+  immersionRi: 1.518,
+  sampleRi: 1.333,
+  coverslipRi: 1.518,
+};
 
 describe("gaussLegendre", () => {
   it("integrates polynomials of degree 2n−1 exactly and caches rules", () => {
@@ -30,34 +42,53 @@ describe("Gibson–Lanni model, matched case", () => {
 
   it("reduces to the Airy pattern in focus", () => {
     // Source: METHODS.md check #18, GL matched NA 1.4, n 1.518, λ 0.52 µm (computed here, equals Airy).
-    expect(gibsonLanniIntensity(model, { radiusUm: 0.1, focusOffsetUm: 0, particleDepthUm: 0 })).toBeCloseToAbs(0.465801, 1e-6);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0.1, focusOffsetUm: 0, particleDepthUm: 0 }),
+    ).toBeCloseToAbs(0.465801, 1e-6);
     // Source: METHODS.md §3 check values, I(r = 0.2 µm) = 0.012116 (computed here).
-    expect(gibsonLanniIntensity(model, { radiusUm: 0.2, focusOffsetUm: 0, particleDepthUm: 0 })).toBeCloseToAbs(0.012116, 1e-6);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0.2, focusOffsetUm: 0, particleDepthUm: 0 }),
+    ).toBeCloseToAbs(0.012116, 1e-6);
     // Source: Airy pattern [2J1(v)/v]², v = k r NA (Born & Wolf §8.5.2, from memory for section number).
     const v = ((2 * Math.PI) / 0.52) * 0.15 * 1.4;
     expect(gibsonLanniIntensity(model, { radiusUm: 0.15, focusOffsetUm: 0, particleDepthUm: 0 })).toBeCloseTo(
-      (2 * besselJ1(v) / v) ** 2,
+      ((2 * besselJ1(v)) / v) ** 2,
       9,
     );
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0, particleDepthUm: 0 })).toBeCloseTo(1, 12);
+    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0, particleDepthUm: 0 })).toBeCloseTo(
+      1,
+      12,
+    );
   });
 
   it("gives the on-axis defocus values", () => {
     // Source: METHODS.md check #19 (computed here; closed form agrees).
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0.25, particleDepthUm: 0 })).toBeCloseToAbs(0.52061, 1e-6);
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0.5, particleDepthUm: 0 })).toBeCloseToAbs(0.041023, 1e-6);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0.25, particleDepthUm: 0 }),
+    ).toBeCloseToAbs(0.52061, 1e-6);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 0.5, particleDepthUm: 0 }),
+    ).toBeCloseToAbs(0.041023, 1e-6);
   });
 
   it("puts the focus at z = −z_p (negative z moves focus deeper)", () => {
     // Source: METHODS.md §3 sign convention: matched OPD = (z + z_p)√(n² − s²).
     const a = gibsonLanniIntensity(model, { radiusUm: 0.1, focusOffsetUm: -7, particleDepthUm: 7 });
     expect(a).toBeCloseToAbs(0.465801, 1e-6);
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 7, particleDepthUm: 7 })).toBeLessThan(0.01);
+    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: 7, particleDepthUm: 7 })).toBeLessThan(
+      0.01,
+    );
   });
 
   it("has its first lateral zero at 0.6098 λ/NA (Rayleigh)", () => {
     // Source: METHODS.md check #20 (computed here): NA 1.4, n 1.515, λ 0.6 → r = 0.2614 µm; Born & Wolf Airy first zero.
-    const m = createGibsonLanniModel({ na: 1.4, wavelengthNm: 600, immersionRi: 1.515, sampleRi: 1.515, coverslipRi: 1.515 });
+    const m = createGibsonLanniModel({
+      na: 1.4,
+      wavelengthNm: 600,
+      immersionRi: 1.515,
+      sampleRi: 1.515,
+      coverslipRi: 1.515,
+    });
     const radii = Array.from({ length: 401 }, (_, i) => 0.2 + i * 0.00025);
     const profile = gibsonLanniLateralProfile(m, { particleDepthUm: 0, focusOffsetUm: 0, radiiUm: radii });
     let best = 0;
@@ -68,7 +99,13 @@ describe("Gibson–Lanni model, matched case", () => {
 
   it("has the low-NA axial first minimum at λ/(n − √(n² − NA²)), close to the paraxial 2nλ/NA²", () => {
     // Source: METHODS.md check #21 (computed here): NA 0.3, n 1.0, λ 0.6 → 13.027 µm; Born & Wolf paraxial 2nλ/NA² = 13.333 µm.
-    const m = createGibsonLanniModel({ na: 0.3, wavelengthNm: 600, immersionRi: 1, sampleRi: 1, coverslipRi: 1 });
+    const m = createGibsonLanniModel({
+      na: 0.3,
+      wavelengthNm: 600,
+      immersionRi: 1,
+      sampleRi: 1,
+      coverslipRi: 1,
+    });
     const offsets = Array.from({ length: 2001 }, (_, i) => 12 + i * 0.001);
     const profile = gibsonLanniAxialProfile(m, { particleDepthUm: 0, focusOffsetsUm: offsets });
     let best = 0;
@@ -84,10 +121,18 @@ describe("Gibson–Lanni model, oil objective into water", () => {
 
   it("matches the METHODS check values at z_p = 10 µm", () => {
     // Source: METHODS.md §3 mismatched case and check #22 (Gibson & Lanni 1991 model, computed here with scipy).
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -12.233, particleDepthUm: 10 })).toBeCloseToAbs(0.345, 0.001);
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -10, particleDepthUm: 10 })).toBeCloseToAbs(0.01057, 1e-5);
-    expect(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -14, particleDepthUm: 10 })).toBeCloseToAbs(0.07561, 1e-5);
-    expect(gibsonLanniIntensity(model, { radiusUm: 0.2, focusOffsetUm: -12.233, particleDepthUm: 10 })).toBeCloseToAbs(0.05216, 1e-5);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -12.233, particleDepthUm: 10 }),
+    ).toBeCloseToAbs(0.345, 0.001);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -10, particleDepthUm: 10 }),
+    ).toBeCloseToAbs(0.01057, 1e-5);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -14, particleDepthUm: 10 }),
+    ).toBeCloseToAbs(0.07561, 1e-5);
+    expect(
+      gibsonLanniIntensity(model, { radiusUm: 0.2, focusOffsetUm: -12.233, particleDepthUm: 10 }),
+    ).toBeCloseToAbs(0.05216, 1e-5);
   });
 
   it("converges with the adaptive node count (100 nodes reproduce the reference to 10 digits)", () => {
@@ -115,7 +160,10 @@ describe("renderGibsonLanniVolume", () => {
     expect(vol.shape).toEqual([5, 9, 9]);
     expect(vol.data.length).toBe(5 * 81);
     const centre = (k: number) => vol.data[k * 81 + 4 * 9 + 4];
-    expect(centre(2)).toBeCloseTo(gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -12.233, particleDepthUm: 10 }), 5);
+    expect(centre(2)).toBeCloseTo(
+      gibsonLanniIntensity(model, { radiusUm: 0, focusOffsetUm: -12.233, particleDepthUm: 10 }),
+      5,
+    );
     // Pixel one step right of centre = radius 0.05 µm; exact radial-grid node, so no interpolation error.
     expect(vol.data[2 * 81 + 4 * 9 + 5]).toBeCloseTo(
       gibsonLanniIntensity(model, { radiusUm: 0.05, focusOffsetUm: -12.233, particleDepthUm: 10 }),
@@ -127,19 +175,35 @@ describe("renderGibsonLanniVolume", () => {
 
   it("rejects a bad shape and voxel size", () => {
     expect(() =>
-      renderGibsonLanniVolume(oilToWater13, { shape: [0, 4, 4], voxelSizeUm: { x: 0.1, y: 0.1, z: 0.1 }, particleDepthUm: 0, firstPlaneNominalFocusUm: 0 }),
+      renderGibsonLanniVolume(oilToWater13, {
+        shape: [0, 4, 4],
+        voxelSizeUm: { x: 0.1, y: 0.1, z: 0.1 },
+        particleDepthUm: 0,
+        firstPlaneNominalFocusUm: 0,
+      }),
     ).toThrow(/shape nz must be an integer ≥ 1, got 0/);
     expect(() =>
-      renderGibsonLanniVolume(oilToWater13, { shape: [1, 4, 4], voxelSizeUm: { x: -1, y: 0.1, z: 0.1 }, particleDepthUm: 0, firstPlaneNominalFocusUm: 0 }),
+      renderGibsonLanniVolume(oilToWater13, {
+        shape: [1, 4, 4],
+        voxelSizeUm: { x: -1, y: 0.1, z: 0.1 },
+        particleDepthUm: 0,
+        firstPlaneNominalFocusUm: 0,
+      }),
     ).toThrow(/voxelSizeUm.x must be > 0, got -1/);
   });
 });
 
 describe("Gibson–Lanni parameter checks", () => {
   it("throws RangeError naming the argument", () => {
-    expect(() => createGibsonLanniModel({ ...matched14, na: 1.6 })).toThrow(/na \(1.6\) cannot exceed the design immersion RI/);
-    expect(() => createGibsonLanniModel({ ...matched14, sampleRi: Number.NaN })).toThrow(/sampleRi must be a finite number > 0/);
-    expect(() => gibsonLanniIntensity(matched14, { radiusUm: -1, focusOffsetUm: 0, particleDepthUm: 0 })).toThrow(/radiusUm/);
+    expect(() => createGibsonLanniModel({ ...matched14, na: 1.6 })).toThrow(
+      /na \(1.6\) cannot exceed the design immersion RI/,
+    );
+    expect(() => createGibsonLanniModel({ ...matched14, sampleRi: Number.NaN })).toThrow(
+      /sampleRi must be a finite number > 0/,
+    );
+    expect(() =>
+      gibsonLanniIntensity(matched14, { radiusUm: -1, focusOffsetUm: 0, particleDepthUm: 0 }),
+    ).toThrow(/radiusUm/);
   });
 
   it("does not mutate the input parameters", () => {

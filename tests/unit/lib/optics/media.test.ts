@@ -29,14 +29,18 @@ describe("water (IAPWS R9-97)", () => {
   });
   it("has dn/dT ≈ −0.98e-4 /K at 20–25 °C", () => {
     // Source: METHODS.md check #42 (computed here from IAPWS).
-    const slope = (refractiveIndex("water", { wavelengthNm: 589, temperatureC: 25 }) - refractiveIndex("water", { wavelengthNm: 589, temperatureC: 20 })) / 5;
+    const slope =
+      (refractiveIndex("water", { wavelengthNm: 589, temperatureC: 25 }) -
+        refractiveIndex("water", { wavelengthNm: 589, temperatureC: 20 })) /
+      5;
     expect(slope).toBeCloseToAbs(-0.98e-4, 0.05e-4);
   });
   it("agrees with the Daimon–Masumura Sellmeier at 20 °C", () => {
     // Source: METHODS.md check #43: Daimon & Masumura, Appl Opt 46:3811 (2007), coefficients confirmed: search (refractiveindex.info, CC0).
     const B = [0.5684027565, 0.1726177391, 0.02086189578, 0.1130748688];
     const C = [0.005101829712, 0.01821153936, 0.02620722293, 10.69792721];
-    const sellmeier = (um: number) => Math.sqrt(1 + B.reduce((s, b, i) => s + (b * um * um) / (um * um - C[i]), 0));
+    const sellmeier = (um: number) =>
+      Math.sqrt(1 + B.reduce((s, b, i) => s + (b * um * um) / (um * um - C[i]), 0));
     expect(sellmeier(0.5893)).toBeCloseToAbs(1.33335, 1e-5);
     for (const nm of [486.1, 546.1, 589.3, 656.3]) {
       expect(waterRefractiveIndexVacuum(nm, 20)).toBeCloseToAbs(sellmeier(nm / 1000), 3e-5);
@@ -62,28 +66,58 @@ describe("immersion oil, cover glass and other media", () => {
     expect(c.a).toBeCloseToAbs(1.49752, 1e-5);
     expect(c.b).toBeCloseToAbs(0.006106, 1e-6);
     // Source: METHODS.md check #44 (ISO 8036, confirmed: search): n_e = 1.5180 at 546.07 nm, 23 °C.
-    expect(refractiveIndex("immersion-oil", { wavelengthNm: 546.07, temperatureC: 23 })).toBeCloseToAbs(1.518, 1e-6);
+    expect(refractiveIndex("immersion-oil", { wavelengthNm: 546.07, temperatureC: 23 })).toBeCloseToAbs(
+      1.518,
+      1e-6,
+    );
     // Source: METHODS.md check #45 (computed here, nominal model): 1.5201 at 520 nm, 1.5145 at 600 nm.
-    expect(refractiveIndex("immersion-oil", { wavelengthNm: 520, temperatureC: 23 })).toBeCloseToAbs(1.5201, 2e-4);
-    expect(refractiveIndex("immersion-oil", { wavelengthNm: 600, temperatureC: 23 })).toBeCloseToAbs(1.5145, 2e-4);
+    expect(refractiveIndex("immersion-oil", { wavelengthNm: 520, temperatureC: 23 })).toBeCloseToAbs(
+      1.5201,
+      2e-4,
+    );
+    expect(refractiveIndex("immersion-oil", { wavelengthNm: 600, temperatureC: 23 })).toBeCloseToAbs(
+      1.5145,
+      2e-4,
+    );
     // Source: METHODS.md check #46 (dn/dT −4e-4 from memory): n_e ≈ 1.5124 at 37 °C.
-    expect(refractiveIndex("immersion-oil", { wavelengthNm: 546.07, temperatureC: 37 })).toBeCloseToAbs(1.5124, 0.001);
+    expect(refractiveIndex("immersion-oil", { wavelengthNm: 546.07, temperatureC: 37 })).toBeCloseToAbs(
+      1.5124,
+      0.001,
+    );
   });
   it("cover glass per ISO 8255-1", () => {
     // Source: METHODS.md check #47 and §9.3 (ISO 8255-1 from memory; Cauchy computed here): n_e 1.5255, 1.5272 at 520 nm, 1.5232 at 589 nm.
-    expect(refractiveIndex("cover-glass", { wavelengthNm: 546.07, temperatureC: 23 })).toBeCloseToAbs(1.5255, 1e-6);
-    expect(refractiveIndex("cover-glass", { wavelengthNm: 520, temperatureC: 23 })).toBeCloseToAbs(1.5272, 2e-4);
-    expect(refractiveIndex("cover-glass", { wavelengthNm: 589, temperatureC: 23 })).toBeCloseToAbs(1.5232, 2e-4);
+    expect(refractiveIndex("cover-glass", { wavelengthNm: 546.07, temperatureC: 23 })).toBeCloseToAbs(
+      1.5255,
+      1e-6,
+    );
+    expect(refractiveIndex("cover-glass", { wavelengthNm: 520, temperatureC: 23 })).toBeCloseToAbs(
+      1.5272,
+      2e-4,
+    );
+    expect(refractiveIndex("cover-glass", { wavelengthNm: 589, temperatureC: 23 })).toBeCloseToAbs(
+      1.5232,
+      2e-4,
+    );
   });
   it("glycerol (Rheims) and ethyl cinnamate (Krauter)", () => {
     // Source: METHODS.md check #48 (Rheims 1997, confirmed: search; computed here): 1.4722 at 589.3 nm, 25 °C.
-    expect(refractiveIndex("glycerol", { wavelengthNm: 589.3, temperatureC: 25 })).toBeCloseToAbs(1.4722, 2e-4);
+    expect(refractiveIndex("glycerol", { wavelengthNm: 589.3, temperatureC: 25 })).toBeCloseToAbs(
+      1.4722,
+      2e-4,
+    );
     // Source: METHODS.md §9.4 (computed here): 1.4699 at 656 nm, 1.4664 at 800 nm.
     expect(refractiveIndex("glycerol", { wavelengthNm: 656, temperatureC: 25 })).toBeCloseToAbs(1.4699, 2e-4);
     expect(refractiveIndex("glycerol", { wavelengthNm: 800, temperatureC: 25 })).toBeCloseToAbs(1.4664, 2e-4);
     // Source: METHODS.md check #49 (Krauter 2015, confirmed: search; computed here): 1.5579 at 589.3 nm; 1.5649 at 546 nm.
-    expect(refractiveIndex("ethyl-cinnamate", { wavelengthNm: 589.3, temperatureC: 20 })).toBeCloseToAbs(1.5579, 5e-4);
-    expect(refractiveIndex("ethyl-cinnamate", { wavelengthNm: 546, temperatureC: 20 })).toBeCloseToAbs(1.5649, 5e-4);
+    expect(refractiveIndex("ethyl-cinnamate", { wavelengthNm: 589.3, temperatureC: 20 })).toBeCloseToAbs(
+      1.5579,
+      5e-4,
+    );
+    expect(refractiveIndex("ethyl-cinnamate", { wavelengthNm: 546, temperatureC: 20 })).toBeCloseToAbs(
+      1.5649,
+      5e-4,
+    );
   });
   it("clearing media and TDE fall in their published ranges", () => {
     // Source: METHODS.md check #50 (confirmed: search): benzyl alcohol : benzyl benzoate 1:2 is 1.55–1.56 in the visible.
@@ -91,7 +125,10 @@ describe("immersion oil, cover glass and other media", () => {
     expect(babb).toBeGreaterThanOrEqual(1.55);
     expect(babb).toBeLessThanOrEqual(1.56);
     // Source: METHODS.md check #51 (range confirmed: search, Staudt 2007; value from memory): TDE 97 % ≈ 1.515–1.518 (tol 0.003).
-    expect(refractiveIndex(tdeWaterMedium(97), { wavelengthNm: 589, temperatureC: 23 })).toBeCloseToAbs(1.5165, 0.003);
+    expect(refractiveIndex(tdeWaterMedium(97), { wavelengthNm: 589, temperatureC: 23 })).toBeCloseToAbs(
+      1.5165,
+      0.003,
+    );
   });
   it("glycerol–water follows the spline, not a straight line", () => {
     // Source: METHODS.md §9.4 (table from memory): 50 % → 1.3981; a linear rule is 0.005 too high at 50 %.
@@ -109,7 +146,20 @@ describe("library API", () => {
     const media = listMedia();
     const ids = new Set(media.map((m) => m.id));
     expect(ids.size).toBe(media.length);
-    for (const id of ["water", "immersion-oil", "silicone-oil", "glycerol", "cover-glass", "tde-water-97", "babb", "dibenzyl-ether", "ethyl-cinnamate", "cytoplasm", "air", "glycerol-water-80"]) {
+    for (const id of [
+      "water",
+      "immersion-oil",
+      "silicone-oil",
+      "glycerol",
+      "cover-glass",
+      "tde-water-97",
+      "babb",
+      "dibenzyl-ether",
+      "ethyl-cinnamate",
+      "cytoplasm",
+      "air",
+      "glycerol-water-80",
+    ]) {
       expect(ids.has(id)).toBe(true);
     }
     for (const m of media) {
@@ -117,21 +167,39 @@ describe("library API", () => {
       expect(["confirmed", "from memory", "common practice"]).toContain(m.evidence);
       expect(m.source.length).toBeGreaterThan(10);
       // The reference value is reproduced by the model at its own reference conditions.
-      expect(refractiveIndex(m, { wavelengthNm: m.referenceWavelengthNm, temperatureC: m.referenceTemperatureC })).toBeCloseToAbs(m.referenceRi, 5e-5);
+      expect(
+        refractiveIndex(m, { wavelengthNm: m.referenceWavelengthNm, temperatureC: m.referenceTemperatureC }),
+      ).toBeCloseToAbs(m.referenceRi, 5e-5);
     }
     expect(JSON.parse(JSON.stringify(media))).toEqual(media);
   });
   it("resolves parametric ids and rejects unknown ones", () => {
-    expect(getMedium("glycerol-water-85")?.referenceRi).toBeGreaterThan(getMedium("glycerol-water-80")!.referenceRi);
+    expect(getMedium("glycerol-water-85")?.referenceRi).toBeGreaterThan(
+      getMedium("glycerol-water-80")!.referenceRi,
+    );
     expect(getMedium("no-such-medium")).toBeUndefined();
     expect(getMedium("glycerol-water-120")).toBeUndefined();
-    expect(() => refractiveIndex("no-such-medium", { wavelengthNm: 520, temperatureC: 20 })).toThrow(/unknown medium id "no-such-medium"/);
+    expect(() => refractiveIndex("no-such-medium", { wavelengthNm: 520, temperatureC: 20 })).toThrow(
+      /unknown medium id "no-such-medium"/,
+    );
   });
   it("evaluates a custom medium with dispersion and temperature", () => {
-    const custom = { kind: "custom" as const, referenceRi: 1.45, cauchyBUm2: 0.004, dnDtPerK: -3e-4, referenceWavelengthNm: 589.3, referenceTemperatureC: 20 };
+    const custom = {
+      kind: "custom" as const,
+      referenceRi: 1.45,
+      cauchyBUm2: 0.004,
+      dnDtPerK: -3e-4,
+      referenceWavelengthNm: 589.3,
+      referenceTemperatureC: 20,
+    };
     expect(refractiveIndex(custom, { wavelengthNm: 589.3, temperatureC: 20 })).toBeCloseTo(1.45, 12);
-    expect(refractiveIndex(custom, { wavelengthNm: 500, temperatureC: 30 })).toBeCloseTo(1.45 + 0.004 * (1 / 0.25 - 1 / 0.5893 ** 2) - 3e-3, 12);
-    expect(() => refractiveIndex(custom, { wavelengthNm: 0, temperatureC: 20 })).toThrow(/wavelengthNm must be > 0, got 0/);
+    expect(refractiveIndex(custom, { wavelengthNm: 500, temperatureC: 30 })).toBeCloseTo(
+      1.45 + 0.004 * (1 / 0.25 - 1 / 0.5893 ** 2) - 3e-3,
+      12,
+    );
+    expect(() => refractiveIndex(custom, { wavelengthNm: 0, temperatureC: 20 })).toThrow(
+      /wavelengthNm must be > 0, got 0/,
+    );
   });
   it("listMedia returns copies (callers cannot corrupt the library)", () => {
     const a = listMedia();

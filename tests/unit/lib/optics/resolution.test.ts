@@ -37,11 +37,15 @@ describe("resolutionLimits", () => {
 
   it("gives 73.5 % midpoint intensity at the Rayleigh separation", () => {
     // Source: METHODS.md check #5 (computed here): 0.7350 of peak.
-    expect(twoPointMidpointRatio({ separationNm: r.airyFirstZeroNm, wavelengthNm: 500, na: 1.4 })).toBeCloseToAbs(0.735, 0.001);
+    expect(
+      twoPointMidpointRatio({ separationNm: r.airyFirstZeroNm, wavelengthNm: 500, na: 1.4 }),
+    ).toBeCloseToAbs(0.735, 0.001);
   });
 
   it("throws on a non-positive NA", () => {
-    expect(() => resolutionLimits({ wavelengthNm: 500, na: 0 })).toThrow(/na must be a finite number > 0, got 0/);
+    expect(() => resolutionLimits({ wavelengthNm: 500, na: 0 })).toThrow(
+      /na must be a finite number > 0, got 0/,
+    );
   });
 });
 
@@ -77,7 +81,13 @@ describe("widefield, confocal and two-photon FWHM", () => {
 
   it("confocal limits and the pinhole blend", () => {
     const at = (pinholeAu: number) =>
-      confocalFwhm({ na: 1.4, immersionRi: 1.518, excitationWavelengthNm: 520, emissionWavelengthNm: 520, pinholeAu });
+      confocalFwhm({
+        na: 1.4,
+        immersionRi: 1.518,
+        excitationWavelengthNm: 520,
+        emissionWavelengthNm: 520,
+        pinholeAu,
+      });
     // Source: METHODS.md check #8 (Airy² FWHM 0.3693 λ/NA, computed here).
     expect(at(0.2).lateralNm).toBeCloseToAbs(137.2, 0.2);
     // Source: METHODS.md check #10 (0.6378 λ/(n − √(n² − NA²)), computed here).
@@ -93,7 +103,13 @@ describe("widefield, confocal and two-photon FWHM", () => {
 
   it("confocal effective wavelength combines excitation and emission", () => {
     // Source: METHODS.md §2.2, λ̄ = √2 λ_ex λ_em/√(λ_ex² + λ_em²) (computed here).
-    const c = confocalFwhm({ na: 1.4, immersionRi: 1.518, excitationWavelengthNm: 488, emissionWavelengthNm: 520, pinholeAu: 0 });
+    const c = confocalFwhm({
+      na: 1.4,
+      immersionRi: 1.518,
+      excitationWavelengthNm: 488,
+      emissionWavelengthNm: 520,
+      pinholeAu: 0,
+    });
     expect(c.effectiveWavelengthNm).toBeCloseTo((Math.SQRT2 * 488 * 520) / Math.hypot(488, 520), 10);
   });
 
@@ -131,7 +147,13 @@ describe("Zhang Gaussian approximations", () => {
   });
   it("confocal σ is the Gaussian product of excitation and emission", () => {
     // Source: METHODS.md §2.3, paraxial confocal σ_r = √2/(NA·√(k_ex² + k_em²)) (Zhang et al. 2007).
-    const c = zhangConfocalSigma({ na: 1.4, immersionRi: 1.518, excitationWavelengthNm: 488, emissionWavelengthNm: 520, paraxial: true });
+    const c = zhangConfocalSigma({
+      na: 1.4,
+      immersionRi: 1.518,
+      excitationWavelengthNm: 488,
+      emissionWavelengthNm: 520,
+      paraxial: true,
+    });
     const kEx = (2 * Math.PI) / 488;
     const kEm = (2 * Math.PI) / 520;
     expect(c.lateralNm).toBeCloseTo(Math.SQRT2 / (1.4 * Math.hypot(kEx, kEm)), 9);
@@ -163,7 +185,12 @@ describe("bead size", () => {
 
 describe("theoreticalFwhm", () => {
   it("returns provenance and the widefield values", () => {
-    const t = theoreticalFwhm({ modality: "widefield", na: 1.4, immersionRi: 1.518, emissionWavelengthNm: 520 });
+    const t = theoreticalFwhm({
+      modality: "widefield",
+      na: 1.4,
+      immersionRi: 1.518,
+      emissionWavelengthNm: 520,
+    });
     // Source: METHODS.md checks #7 and #9 (computed here).
     expect(t.lateralNm).toBeCloseToAbs(191.1, 0.2);
     expect(t.axialNm).toBeCloseToAbs(494.7, 0.5);
@@ -184,13 +211,24 @@ describe("theoreticalFwhm", () => {
     expect(capped.notes.join(" ")).toMatch(/capped/);
   });
   it("requires the excitation wavelength for two-photon", () => {
-    expect(() => theoreticalFwhm({ modality: "two-photon", na: 1, immersionRi: 1.33, emissionWavelengthNm: 520 })).toThrow(
-      /excitationWavelengthNm is required for two-photon/,
-    );
+    expect(() =>
+      theoreticalFwhm({ modality: "two-photon", na: 1, immersionRi: 1.33, emissionWavelengthNm: 520 }),
+    ).toThrow(/excitationWavelengthNm is required for two-photon/);
   });
   it("narrows the light-sheet axial width with a given sheet", () => {
-    const det = theoreticalFwhm({ modality: "light-sheet", na: 1, immersionRi: 1.333, emissionWavelengthNm: 520 });
-    const sheet = theoreticalFwhm({ modality: "light-sheet", na: 1, immersionRi: 1.333, emissionWavelengthNm: 520, lightSheetFwhmNm: 1000 });
+    const det = theoreticalFwhm({
+      modality: "light-sheet",
+      na: 1,
+      immersionRi: 1.333,
+      emissionWavelengthNm: 520,
+    });
+    const sheet = theoreticalFwhm({
+      modality: "light-sheet",
+      na: 1,
+      immersionRi: 1.333,
+      emissionWavelengthNm: 520,
+      lightSheetFwhmNm: 1000,
+    });
     expect(sheet.axialNm).toBeLessThan(det.axialNm);
     expect(sheet.axialNm).toBeLessThan(1000);
   });

@@ -3,24 +3,46 @@ import { checkSampling, nyquistSampling } from "@/lib/optics";
 
 describe("nyquistSampling", () => {
   it("confocal λ_ex 488, NA 1.3, n 1.515", () => {
-    const n = nyquistSampling({ modality: "confocal", na: 1.3, immersionRi: 1.515, emissionWavelengthNm: 520, excitationWavelengthNm: 488 });
+    const n = nyquistSampling({
+      modality: "confocal",
+      na: 1.3,
+      immersionRi: 1.515,
+      emissionWavelengthNm: 520,
+      excitationWavelengthNm: 488,
+    });
     // Source: METHODS.md check #34 (formula Heintzmann & Sheppard 2007, from memory; example confirmed: search).
     expect(n.lateralNm).toBeCloseToAbs(46.9, 0.1);
     expect(n.axialNm).toBeCloseToAbs(165.5, 0.1);
   });
   it("widefield λ_em 520, NA 1.4, n 1.518 and NA 1.2 water", () => {
-    const n = nyquistSampling({ modality: "widefield", na: 1.4, immersionRi: 1.518, emissionWavelengthNm: 520 });
+    const n = nyquistSampling({
+      modality: "widefield",
+      na: 1.4,
+      immersionRi: 1.518,
+      emissionWavelengthNm: 520,
+    });
     // Source: METHODS.md check #35 (computed here).
     expect(n.lateralNm).toBeCloseToAbs(92.9, 0.1);
     expect(n.axialNm).toBeCloseToAbs(279.2, 0.1);
     // Source: METHODS.md §6 worked example (computed here): 108.3/345.5 nm.
-    const w = nyquistSampling({ modality: "widefield", na: 1.2, immersionRi: 1.333, emissionWavelengthNm: 520 });
+    const w = nyquistSampling({
+      modality: "widefield",
+      na: 1.2,
+      immersionRi: 1.333,
+      emissionWavelengthNm: 520,
+    });
     expect(w.lateralNm).toBeCloseToAbs(108.3, 0.1);
     expect(w.axialNm).toBeCloseToAbs(345.5, 0.2);
   });
   it("two-photon uses half the excitation wavelength", () => {
     // Source: METHODS.md §6 worked example (computed here): 2P 920 nm, NA 1.0 water → 115/509 nm.
-    const n = nyquistSampling({ modality: "two-photon", na: 1, immersionRi: 1.333, emissionWavelengthNm: 520, excitationWavelengthNm: 920 });
+    const n = nyquistSampling({
+      modality: "two-photon",
+      na: 1,
+      immersionRi: 1.333,
+      emissionWavelengthNm: 520,
+      excitationWavelengthNm: 920,
+    });
     expect(n.lateralNm).toBeCloseToAbs(115, 0.5);
     expect(n.axialNm).toBeCloseToAbs(509, 1);
   });
@@ -37,7 +59,9 @@ describe("checkSampling", () => {
     // 191.1 nm Airy FWHM / 64.5 nm = 2.96 px: just under the ≥ 3 px fitting rule (common practice).
     expect(ok.lateral.samplesAcrossFwhm).toBeCloseToAbs(191.1 / 64.5, 0.01);
     expect(ok.lateral.enoughForFitting).toBe(false);
-    expect(checkSampling({ ...optics, voxelSizeUm: { x: 0.05, y: 0.05, z: 0.09 } }).lateral.enoughForFitting).toBe(true);
+    expect(
+      checkSampling({ ...optics, voxelSizeUm: { x: 0.05, y: 0.05, z: 0.09 } }).lateral.enoughForFitting,
+    ).toBe(true);
     const binned = checkSampling({ ...optics, voxelSizeUm: { x: 0.258, y: 0.258, z: 0.2 } });
     expect(binned.lateral.verdict).toBe("far too coarse");
     expect(binned.verdict).toBe("far too coarse");
@@ -54,6 +78,8 @@ describe("checkSampling", () => {
     expect(coarse.axial.verdict).toBe("coarse");
   });
   it("rejects a zero voxel size", () => {
-    expect(() => checkSampling({ ...optics, voxelSizeUm: { x: 0, y: 0.1, z: 0.1 } })).toThrow(/voxelSizeUm.x must be a finite number > 0, got 0/);
+    expect(() => checkSampling({ ...optics, voxelSizeUm: { x: 0, y: 0.1, z: 0.1 } })).toThrow(
+      /voxelSizeUm.x must be a finite number > 0, got 0/,
+    );
   });
 });
