@@ -278,8 +278,10 @@ export interface AnalyzeStackOptions {
   expectedFwhmUm: { lateral: number; axial: number };
   /** Detection threshold in units of the smoothed-image noise σ above the background. @default 6 */
   thresholdK?: number;
-  /** Minimum separation of two detections (µm): lateral, axial. Closer maxima are merged (the brighter kept). @default { lateral: 1·FWHM_lat, axial: 4·FWHM_ax } */
+  /** Minimum separation of two detections (µm): lateral, axial. Closer maxima are merged (the brighter kept). @default { lateral: 2·FWHM_lat, axial: 4·FWHM_ax } (a number sets the lateral value) */
   minSeparationUm?: number | { lateral: number; axial: number };
+  /** Maxima dimmer than this fraction of a brighter one inside its exclusion ellipsoid are merged into it (rings, lobes). @default 0.25 */
+  secondaryFraction?: number;
   /** Neighbour exclusion ellipsoid in units of the expected FWHM. @default { lateral: 3, axial: 2 } */
   exclusionFactor?: { lateral: number; axial: number };
   /** Counts at or above which a voxel is saturated. @default dtype maximum */

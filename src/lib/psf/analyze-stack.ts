@@ -26,7 +26,9 @@ import { summarizeBeads } from "./summarize-beads";
  * Notes: stages and what decides each bead —
  * 1. background = stack median, noise σ = 1.4826·MAD (histogram for 8/16-bit);
  * 2. detection on the lightly smoothed stack (σ = ½ the expected PSF σ per axis, clamped to
- *    0.5–1 voxel), threshold background + k·σ_smoothed, merge within `minSeparationUm`;
+ *    0.5–1 voxel), threshold background + k·σ_smoothed, merge within `minSeparationUm`, and merge maxima
+ *    dimmer than `secondaryFraction` × a brighter one within max(exclusion, 6) expected FWHM
+ *    laterally and axially (Airy/defocus rings, side lobes);
  * 3. per bead (`measureBead`); reasons, first applicable wins: `edge` (fit window leaves the stack),
  *    `saturated` (a voxel ≥ ceiling near the peak), `neighbour` (another detection inside the
  *    ellipsoid exclusionFactor·expected FWHM), `low_snr` (amplitude/σ < snrFloor), `fit_failed`,
@@ -53,6 +55,10 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
     smoothingSigmaPx: { x: smooth(o.expectedFwhmUm.lateral, vs.x), y: smooth(o.expectedFwhmUm.lateral, vs.y), z: smooth(o.expectedFwhmUm.axial, vs.z) },
     thresholdK: o.thresholdK,
     minSeparationUm: o.minSeparationUm,
+    secondaryFraction: o.secondaryFraction,
+    // Side lobes of a depth-aberrated PSF reach several matched axial FWHM from the peak (METHODS §8), and the
+    // defocus rings in those lobe planes ≈ 4 lateral FWHM off axis (seen on GL renders, oil → water 10 µm), hence ≥ 6.
+    secondaryZoneUm: { lateral: Math.max(o.exclusionFactor.lateral, 6) * o.expectedFwhmUm.lateral, axial: Math.max(o.exclusionFactor.axial, 6) * o.expectedFwhmUm.axial },
     onProgress: progress ? (f) => progress("detecting", f) : undefined,
   });
   progress?.("fitting", 0);

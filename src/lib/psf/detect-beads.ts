@@ -13,6 +13,13 @@ export interface DetectBeadsOptions {
   thresholdK?: number;
   /** Maxima closer than this laterally AND axially (µm) are merged, keeping the brighter. */
   minSeparationUm: { lateral: number; axial: number };
+  /**
+   * Secondary-maximum rule: a maximum inside `secondaryZoneUm` (cylinder: lateral radius, axial half-height) of a brighter
+   * kept one and dimmer than `secondaryFraction` × its height is taken as that bead's ring or side
+   * lobe and merged. @default 0.25 (zone: none)
+   */
+  secondaryFraction?: number;
+  secondaryZoneUm?: { lateral: number; axial: number };
   /** Stop collecting candidates beyond this many (protects memory on pathological input). @default 200000 */
   maxCandidates?: number;
   onProgress?: (fraction: number) => void;
@@ -56,13 +63,15 @@ export interface DetectBeadsResult {
  * raised near them by the clamped kernel's larger noise gain.
  * Sub-voxel position: 3-point parabola per axis on the smoothed values. Merging: maxima sorted
  * by height; one is dropped when a brighter kept one is within `minSeparationUm.lateral`
- * laterally and `minSeparationUm.axial` axially (this also merges axial side lobes).
+ * laterally and `minSeparationUm.axial` axially (this also merges axial side lobes), or when it lies
+ * inside `secondaryZoneUm` of a kept one and is dimmer than `secondaryFraction` of it (Airy rings and
+ * defocus rings of bright beads, which are local maxima above the threshold).
  * References: common practice (smoothing + local maxima + non-maximum suppression).
  * @example
  * detectBeads(stack, { background: 100, noiseSigma: 10, smoothingSigmaPx: { x: 1, y: 1, z: 1 }, minSeparationUm: { lateral: 0.3, axial: 3 } });
  */
 export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBeadsResult {
-  const { background, noiseSigma, smoothingSigmaPx, thresholdK = 6, minSeparationUm, maxCandidates = 200_000, onProgress } = options;
+  const { background, noiseSigma, smoothingSigmaPx, thresholdK = 6, minSeparationUm, maxCandidates = 200_000, onProgress, secondaryFraction = 0.25, secondaryZoneUm } = options;
   if (!stack.voxelSizeUm) throw new TypeError("detectBeads: stack.voxelSizeUm is required");
   const { x: vx, y: vy, z: vz } = stack.voxelSizeUm;
   const [nz, ny, nx] = stack.shape;
@@ -198,13 +207,21 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
     const x = cand[4 * i];
     const y = cand[4 * i + 1];
     const z = cand[4 * i + 2];
+    const h = cand[4 * i + 3];
     let clash = false;
     for (const k of kept) {
       const dx = (k.x - x) * vx;
       const dy = (k.y - y) * vy;
-      if (dx * dx + dy * dy < lat2 && Math.abs((k.z - z) * vz) < minSeparationUm.axial) {
+      const dz = (k.z - z) * vz;
+      if (dx * dx + dy * dy < lat2 && Math.abs(dz) < minSeparationUm.axial) {
         clash = true;
         break;
+      }
+      if (secondaryZoneUm && h < secondaryFraction * k.height) {
+        if (dx * dx + dy * dy < secondaryZoneUm.lateral * secondaryZoneUm.lateral && Math.abs(dz) < secondaryZoneUm.axial) {
+          clash = true;
+          break;
+        }
       }
     }
     if (!clash) kept.push({ x, y, z, height: cand[4 * i + 3] });

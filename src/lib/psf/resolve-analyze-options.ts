@@ -5,6 +5,7 @@ import type { AnalysisStage, AnalyzeStackOptions } from "./analysis-types";
 export interface ResolvedAnalyzeOptions {
   expectedFwhmUm: { lateral: number; axial: number };
   thresholdK: number;
+  secondaryFraction: number;
   minSeparationUm: { lateral: number; axial: number };
   exclusionFactor: { lateral: number; axial: number };
   saturationLevel: number;
@@ -69,6 +70,7 @@ export function resolveAnalyzeOptions(stack: Stack, options: AnalyzeStackOptions
   if (!positive(e.axial)) throw new RangeError(`analyzeStack: options.expectedFwhmUm.axial must be > 0 µm; got ${e.axial}`);
   const {
     thresholdK = 6,
+    secondaryFraction = 0.25,
     exclusionFactor = { lateral: 3, axial: 2 },
     saturationCeiling,
     snrFloor = 10,
@@ -97,7 +99,7 @@ export function resolveAnalyzeOptions(stack: Stack, options: AnalyzeStackOptions
   const minSep = options.minSeparationUm;
   const minSeparationUm =
     minSep === undefined
-      ? { lateral: e.lateral, axial: 4 * e.axial }
+      ? { lateral: 2 * e.lateral, axial: 4 * e.axial }
       : typeof minSep === "number"
         ? { lateral: minSep, axial: 4 * e.axial }
         : minSep;
@@ -105,6 +107,7 @@ export function resolveAnalyzeOptions(stack: Stack, options: AnalyzeStackOptions
     if (!ok) throw new RangeError(`analyzeStack: options.${name} must be ${rule}; got ${JSON.stringify(value)}`);
   };
   check(positive(thresholdK), "thresholdK", thresholdK, "> 0");
+  check(secondaryFraction >= 0 && secondaryFraction < 1, "secondaryFraction", secondaryFraction, "in [0, 1)");
   check(minSeparationUm.lateral >= 0 && minSeparationUm.axial >= 0, "minSeparationUm", minSep, "≥ 0 µm");
   check(positive(exclusionFactor.lateral) && positive(exclusionFactor.axial), "exclusionFactor", exclusionFactor, "> 0 in both directions");
   if (saturationCeiling !== undefined) check(positive(saturationCeiling), "saturationCeiling", saturationCeiling, "a positive count");
@@ -128,6 +131,7 @@ export function resolveAnalyzeOptions(stack: Stack, options: AnalyzeStackOptions
   return {
     expectedFwhmUm: { lateral: e.lateral, axial: e.axial },
     thresholdK,
+    secondaryFraction,
     minSeparationUm: { ...minSeparationUm },
     exclusionFactor: { ...exclusionFactor },
     saturationLevel: saturationCeiling ?? dtypeMaximum(stack.dtype),
