@@ -9,7 +9,7 @@ import type { StackDtype } from "./stack";
 import { parseImageJDescription } from "./parse-imagej-description";
 import { parseOmeXml, type OmeMetadata } from "./parse-ome-xml";
 import { lengthToUm } from "./length-to-um";
-import { readEntryNumbers, scanTiffStructure, type TiffStructure } from "./scan-tiff-structure";
+import { readEntryNumbers, scanTiffStructure, type TiffEntry, type TiffStructure } from "./scan-tiff-structure";
 import { TiffInputError } from "./tiff-input-error";
 import type { MetadataSource, Sourced, TiffMetadata, TiffWarning } from "./tiff-metadata";
 
@@ -214,7 +214,7 @@ export async function planTiffStack(bytes: Uint8Array, options: TiffReadOptions 
     if (ifdIndex === undefined || ifdIndex < 0 || ifdIndex >= ifds.length) {
       throw new TiffInputError("bad_metadata", `Slice ${z} of channel ${channel}, frame ${frame} is not stored in this file (the metadata declares more planes than the file has pages: ${ifds.length}).`, { slice: z, pages: ifds.length });
     }
-    pages.push(pageLayout(await pageTags(ifdIndex), ifdIndex, bytes.byteLength));
+    pages.push(pageLayout(await pageTags(ifdIndex), ifdIndex, bytes, littleEndian));
   }
 
   // Voxel size.
@@ -294,8 +294,8 @@ interface PageTags {
   tileWidth: number;
   tileHeight: number;
   bytesPerSample: number;
-  offsets: Float64Array | null;
-  byteCounts: Float64Array | null;
+  offsetEntry: TiffEntry | null;
+  byteCountEntry: TiffEntry | null;
   description: string | null;
   xResolution: number | null;
   yResolution: number | null;
@@ -333,8 +333,6 @@ async function readPageTags(tiff: GeoTIFF, i: number, structure: TiffStructure, 
     // out-of-line arrays it defers as little-endian regardless of the file's byte order.
     const offEntry = entries.get(tileWidth > 0 ? 324 : 273);
     const cntEntry = entries.get(tileWidth > 0 ? 325 : 279);
-    const offsets = offEntry ? readEntryNumbers(bytes, offEntry, structure.littleEndian) : null;
-    const byteCounts = cntEntry ? readEntryNumbers(bytes, cntEntry, structure.littleEndian) : null;
     let description: string | null = null;
     let xResolution: number | null = null;
     let yResolution: number | null = null;
@@ -353,7 +351,7 @@ async function readPageTags(tiff: GeoTIFF, i: number, structure: TiffStructure, 
     return {
       index: i, width, height, bitsPerSample, sampleFormat, samplesPerPixel, compression, predictor, planar,
       rowsPerStrip, tileWidth, tileHeight, bytesPerSample: Math.max(1, (bitsPerSample[0] ?? 8) >> 3),
-      offsets, byteCounts, description, xResolution, yResolution, resolutionUnit,
+      offsetEntry: offEntry ?? null, byteCountEntry: cntEntry ?? null, description, xResolution, yResolution, resolutionUnit,
     };
   } catch (e) {
     throw mapForeign(e, `page ${i}`);
@@ -372,7 +370,8 @@ function checkSampleLayout(t: PageTags, page: number): StackDtype {
   throw new TiffInputError("unsupported_sample_format", `Page ${page} holds ${bits}-bit ${kind} samples; supported are 8/16/32-bit unsigned integers and 32-bit floats.`, { page, bitsPerSample: bits, sampleFormat: t.sampleFormat });
 }
 
-function pageLayout(t: PageTags, ifdIndex: number, fileBytes: number): PageLayout {
+function pageLayout(t: PageTags, ifdIndex: number, bytes: Uint8Array, littleEndian: boolean): PageLayout {
+  const fileBytes = bytes.byteLength;
   if (!(t.compression in COMPRESSION_NAMES)) {
     throw new TiffInputError("unsupported_compression", `Page ${ifdIndex} uses TIFF compression ${t.compression}; supported are none (1), LZW (5), Deflate (8, 32946) and PackBits (32773).`, { page: ifdIndex, compression: t.compression });
   }
@@ -394,11 +393,12 @@ function pageLayout(t: PageTags, ifdIndex: number, fileBytes: number): PageLayou
     expectedChunks = Math.ceil(height / Math.min(t.rowsPerStrip, height));
     chunkBytes = Math.min(t.rowsPerStrip, height) * width * bytesPerSample;
   }
-  const offsets = t.offsets;
+  // Only the offsets this page needs are read (a corrupt count cannot make us read more).
+  const offsets = t.offsetEntry ? readEntryNumbers(bytes, t.offsetEntry, littleEndian, expectedChunks) : null;
   if (!offsets || offsets.length < expectedChunks) {
     throw new TiffInputError("corrupt_ifd", `Page ${ifdIndex} lists ${offsets?.length ?? 0} strip/tile offsets; ${expectedChunks} are needed.`, { page: ifdIndex });
   }
-  const counts = t.byteCounts;
+  const counts = t.byteCountEntry ? readEntryNumbers(bytes, t.byteCountEntry, littleEndian, expectedChunks) : null;
   if (counts && counts.length < expectedChunks) {
     throw new TiffInputError("corrupt_ifd", `Page ${ifdIndex} lists ${counts.length} strip/tile byte counts; ${expectedChunks} are needed.`, { page: ifdIndex });
   }
@@ -415,7 +415,7 @@ function pageLayout(t: PageTags, ifdIndex: number, fileBytes: number): PageLayou
   return {
     ifdIndex, width, height, bytesPerSample, compression: t.compression, predictor: t.predictor,
     rowsPerStrip: Math.min(t.rowsPerStrip, height), tileWidth: t.tileWidth, tileHeight: t.tileHeight,
-    offsets: offsets.subarray(0, expectedChunks), byteCounts: counts ? counts.subarray(0, expectedChunks) : null,
+    offsets, byteCounts: counts,
   };
 }
 

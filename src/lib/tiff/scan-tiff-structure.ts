@@ -152,27 +152,29 @@ export function scanTiffStructure(bytes: Uint8Array, options: ScanTiffStructureO
  * @param bytes - the whole file
  * @param entry - the entry, already validated by {@link scanTiffStructure}
  * @param littleEndian - the file's byte order
- * @returns one number per value (a RATIONAL gives numerator/denominator)
+ * @param maxCount - read at most this many values @default all
+ * @returns one number per value read (a RATIONAL gives numerator/denominator)
  * @throws {TiffInputError} `corrupt_ifd` for a non-numeric type
  */
-export function readEntryNumbers(bytes: Uint8Array, entry: TiffEntry, littleEndian: boolean): Float64Array {
+export function readEntryNumbers(bytes: Uint8Array, entry: TiffEntry, littleEndian: boolean, maxCount = Infinity): Float64Array {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const out = new Float64Array(entry.count);
+  const count = Math.min(entry.count, maxCount);
+  const out = new Float64Array(count);
   const p = entry.valueOffset;
   const le = littleEndian;
   switch (entry.type) {
-    case 1: case 7: for (let i = 0; i < entry.count; i++) out[i] = bytes[p + i]; break;
-    case 6: for (let i = 0; i < entry.count; i++) out[i] = view.getInt8(p + i); break;
-    case 3: for (let i = 0; i < entry.count; i++) out[i] = view.getUint16(p + 2 * i, le); break;
-    case 8: for (let i = 0; i < entry.count; i++) out[i] = view.getInt16(p + 2 * i, le); break;
-    case 4: case 13: for (let i = 0; i < entry.count; i++) out[i] = view.getUint32(p + 4 * i, le); break;
-    case 9: for (let i = 0; i < entry.count; i++) out[i] = view.getInt32(p + 4 * i, le); break;
-    case 11: for (let i = 0; i < entry.count; i++) out[i] = view.getFloat32(p + 4 * i, le); break;
-    case 12: for (let i = 0; i < entry.count; i++) out[i] = view.getFloat64(p + 8 * i, le); break;
-    case 5: for (let i = 0; i < entry.count; i++) out[i] = view.getUint32(p + 8 * i, le) / view.getUint32(p + 8 * i + 4, le); break;
-    case 10: for (let i = 0; i < entry.count; i++) out[i] = view.getInt32(p + 8 * i, le) / view.getInt32(p + 8 * i + 4, le); break;
-    case 16: case 18: for (let i = 0; i < entry.count; i++) out[i] = Number(view.getBigUint64(p + 8 * i, le)); break;
-    case 17: for (let i = 0; i < entry.count; i++) out[i] = Number(view.getBigInt64(p + 8 * i, le)); break;
+    case 1: case 7: for (let i = 0; i < count; i++) out[i] = bytes[p + i]; break;
+    case 6: for (let i = 0; i < count; i++) out[i] = view.getInt8(p + i); break;
+    case 3: for (let i = 0; i < count; i++) out[i] = view.getUint16(p + 2 * i, le); break;
+    case 8: for (let i = 0; i < count; i++) out[i] = view.getInt16(p + 2 * i, le); break;
+    case 4: case 13: for (let i = 0; i < count; i++) out[i] = view.getUint32(p + 4 * i, le); break;
+    case 9: for (let i = 0; i < count; i++) out[i] = view.getInt32(p + 4 * i, le); break;
+    case 11: for (let i = 0; i < count; i++) out[i] = view.getFloat32(p + 4 * i, le); break;
+    case 12: for (let i = 0; i < count; i++) out[i] = view.getFloat64(p + 8 * i, le); break;
+    case 5: for (let i = 0; i < count; i++) out[i] = view.getUint32(p + 8 * i, le) / view.getUint32(p + 8 * i + 4, le); break;
+    case 10: for (let i = 0; i < count; i++) out[i] = view.getInt32(p + 8 * i, le) / view.getInt32(p + 8 * i + 4, le); break;
+    case 16: case 18: for (let i = 0; i < count; i++) out[i] = Number(view.getBigUint64(p + 8 * i, le)); break;
+    case 17: for (let i = 0; i < count; i++) out[i] = Number(view.getBigInt64(p + 8 * i, le)); break;
     default:
       throw new TiffInputError("corrupt_ifd", `Tag ${entry.tag} has non-numeric field type ${entry.type}.`, { tag: entry.tag, type: entry.type });
   }
