@@ -114,7 +114,7 @@ export interface BeadSizeCorrection {
   beadLabel: "solid" | "shell";
   /** Gaussian-equivalent FWHM of the bead (µm): 0.5265·d solid, 0.6798·d shell. */
   beadFwhmUm: number | null;
-  /** Per axis: applied only when beadFwhm < 0.5·measured median FWHM. */
+  /** Per axis: applied only when 0.5265·d < 0.5·measured median FWHM (METHODS §7). */
   appliedLateral: boolean;
   appliedAxial: boolean;
 }

@@ -17,7 +17,7 @@ export interface BeadSizeCorrected {
  * @param beadDiameterNm - bead diameter (nm)
  * @param label - "solid" (uniformly dyed) or "shell" (surface-labelled) @default "solid"
  * @returns corrected FWHM √(F² − F_b²) with F_b = 0.5265·d (solid) or 0.6798·d (shell), applied
- *   only when F_b < 0.5·F (else null and applied = false)
+ *   only when 0.5265·d < 0.5·F (the limit as METHODS §7 states it, for either label; else null, applied = false)
  * @throws RangeError for a non-positive or non-finite diameter
  *
  * Notes: exact for a Gaussian PSF and Gaussian bead; within ≈ 2 % for d ≤ FWHM; the
@@ -30,6 +30,9 @@ export function correctForBeadSize(measuredFwhmUm: number, beadDiameterNm: numbe
   if (!(beadDiameterNm > 0) || !Number.isFinite(beadDiameterNm))
     throw new RangeError(`correctForBeadSize: beadDiameterNm must be a positive number; got ${beadDiameterNm}`);
   const beadFwhmUm = (BEAD_FWHM_PER_DIAMETER[label] * beadDiameterNm) / 1000;
-  if (!(measuredFwhmUm > 0) || !(beadFwhmUm < 0.5 * measuredFwhmUm)) return { correctedUm: null, beadFwhmUm, applied: false };
+  // The applicability limit is stated on the solid-sphere term 0.5265·d for either label (METHODS §7, issue 4).
+  const limitTermUm = (BEAD_FWHM_PER_DIAMETER.solid * beadDiameterNm) / 1000;
+  if (!(measuredFwhmUm > 0) || !(limitTermUm < 0.5 * measuredFwhmUm) || !(beadFwhmUm < measuredFwhmUm))
+    return { correctedUm: null, beadFwhmUm, applied: false };
   return { correctedUm: Math.sqrt(measuredFwhmUm * measuredFwhmUm - beadFwhmUm * beadFwhmUm), beadFwhmUm, applied: true };
 }

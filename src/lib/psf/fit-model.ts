@@ -53,7 +53,7 @@ export interface FitModelResult {
  * Notes: ml-levenberg-marquardt stops only on an absolute error tolerance, so with noise
  * it always runs `maxIterations`. Convergence is therefore judged afterwards: J is computed
  * at the optimum, the Gauss–Newton step δ = (JᵀJ)⁻¹Jᵀr is formed, and the fit counts as
- * converged when every |δ_k| < stepTolerance·SE_k (or < 1e-9·|p_k| for noise-free data).
+ * converged when every |δ_k| < max(stepTolerance·SE_k, 1e-7·|p_k|) (the second term serves noise-free data).
  * cov = s²(JᵀJ)⁻¹, s² = SSE/(n − p) (unweighted least squares).
  * References: Press et al., Numerical Recipes 3rd ed. §15.5 (from memory); TOOLCHAIN.md §6.16.
  * @example
@@ -161,7 +161,7 @@ export function fitModel(y: ArrayLike<number>, model: IndexedModel, options: Fit
     const atBound =
       (minValues && params[a] <= minValues[a] && delta < 0) || (maxValues && params[a] >= maxValues[a] && delta > 0);
     if (atBound) continue;
-    const scale = standardErrors[a] > 0 ? stepTolerance * standardErrors[a] : 1e-9 * Math.max(1e-12, Math.abs(params[a]));
+    const scale = Math.max(stepTolerance * standardErrors[a], 1e-7 * Math.abs(params[a]), 1e-12);
     if (!(Math.abs(delta) <= scale)) converged = false;
   }
   return {
