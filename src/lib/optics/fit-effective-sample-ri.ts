@@ -1,5 +1,6 @@
 import { axialScalingFactors } from "./axial-scaling-factors";
 import { gibsonLanniDepthMetrics } from "./gibson-lanni-depth-metrics";
+import { findGibsonLanniFocus } from "./find-gibson-lanni-focus";
 import { createGibsonLanniModel } from "./gibson-lanni-model";
 import type { GibsonLanniParams } from "./gibson-lanni-params";
 import { createMonotoneInterpolator } from "./monotone-interpolator";
@@ -34,8 +35,10 @@ export interface FitEffectiveSampleRiOptions {
   toleranceRi?: number;
   /** Golden-section iteration cap. @default 40 */
   maxIterations?: number;
-  /** GL depths sampled per candidate n_s (curve interpolated to the rows). @default 7 */
+  /** GL depths sampled per candidate n_s when there are more distinct row depths than exactRowLimit. @default 9 */
   curveSampleCount?: number;
+  /** Up to this many distinct row depths, the model is evaluated at each row depth exactly. @default 16 */
+  exactRowLimit?: number;
 }
 
 /** Prediction at the fitted RI for one row. */
@@ -63,7 +66,7 @@ export interface EffectiveSampleRiFit {
   residualSd: number;
   /** Whether per-row SEs were used as weights. */
   weighted: boolean;
-  /** A second, clearly separate minimum on the other side of the immersion RI (same FWHM broadening). */
+  /** A separate minimum on the other side of the immersion RI that fits nearly as well (SSE within 4Δ), else null. */
   alternativeRi: number | null;
   /** How the side of the immersion RI was chosen (asymmetry evidence or SSE alone). */
   sideChosenBy: "sse" | "asymmetry";
@@ -104,19 +107,25 @@ interface Curve {
 }
 
 /**
- * Predicted axial FWHM curve for one candidate n_s, sampled at a few actual depths that cover
- * the rows and interpolated (monotone cubic) to each row depth (internal).
+ * Predictions for one candidate n_s at the row depths (internal).
+ *
+ * With at most `exactRowLimit` distinct depths the GL metrics are evaluated at each row's own
+ * actual depth (nominal depths are first converted through a 5-point focal-shift curve of this
+ * n_s, which is smooth, so the conversion error is ~10⁻² µm). With more rows the metrics are
+ * sampled at `count` depths covering the rows and interpolated (monotone cubic).
  */
 function predictCurve(
   optics: FitOptics,
   sampleRi: number,
   depthKind: "nominal" | "actual",
-  depthRangeUm: [number, number],
+  rowDepthsUm: number[],
   count: number,
+  exactRowLimit: number,
   full: boolean,
 ): Curve {
   const model = createGibsonLanniModel({ ...optics, sampleRi });
-  let [lo, hi] = depthRangeUm;
+  let lo = Math.min(...rowDepthsUm);
+  let hi = Math.max(...rowDepthsUm);
   if (depthKind === "nominal") {
     // Bracket the actual depths with the depth-independent factors (GL ζ lies between them).
     const f = axialScalingFactors({ na: optics.na, immersionRi: optics.immersionRi, sampleRi });
@@ -125,6 +134,43 @@ function predictCurve(
     hi = hi * Math.max(...zs) + 1;
   }
   if (hi - lo < 1e-6) hi = lo + 1;
+  const unique = [...new Set(rowDepthsUm)].sort((a, b) => a - b);
+  const options = { lateral: full, sideLobes: full };
+
+  if (unique.length <= exactRowLimit) {
+    let toActual = (d: number) => d;
+    if (depthKind === "nominal") {
+      const actual: number[] = [];
+      const nominal: number[] = [];
+      for (let k = 0; k < 5; k++) {
+        const d = lo + ((hi - lo) * k) / 4;
+        const focus = findGibsonLanniFocus(model, d);
+        if (nominal.length > 0 && focus.nominalFocusUm <= nominal[nominal.length - 1]) continue;
+        actual.push(d);
+        nominal.push(focus.nominalFocusUm);
+      }
+      const interpolate = createMonotoneInterpolator(nominal, actual);
+      toActual = (d: number) => Math.max(0, interpolate(d));
+    }
+    const byDepth = new Map<number, { actual: number; m: ReturnType<typeof gibsonLanniDepthMetrics> }>();
+    for (const d of unique) {
+      const actual = toActual(d);
+      byDepth.set(d, { actual, m: gibsonLanniDepthMetrics(model, actual, options) });
+    }
+    const get = (d: number) => {
+      const hit = byDepth.get(d);
+      if (hit) return hit;
+      const actual = toActual(d);
+      return { actual, m: gibsonLanniDepthMetrics(model, actual, options) };
+    };
+    return {
+      axialAt: (d) => get(d).m.axialFwhmUm,
+      actualAt: (d) => get(d).actual,
+      lateralAt: (d) => get(d).m.lateralFwhmUm,
+      asymmetryAt: (d) => get(d).m.sideLobeAsymmetry,
+    };
+  }
+
   const actual: number[] = [];
   const nominal: number[] = [];
   const axial: number[] = [];
@@ -132,7 +178,7 @@ function predictCurve(
   const asym: number[] = [];
   for (let k = 0; k < count; k++) {
     const d = lo + ((hi - lo) * k) / (count - 1);
-    const m = gibsonLanniDepthMetrics(model, d, { lateral: full, sideLobes: full });
+    const m = gibsonLanniDepthMetrics(model, d, options);
     if (nominal.length > 0 && m.nominalFocusUm <= nominal[nominal.length - 1]) continue;
     actual.push(d);
     nominal.push(m.nominalFocusUm);
@@ -158,7 +204,8 @@ const GOLDEN = (Math.sqrt(5) - 1) / 2;
  * - objective: weighted SSE Σ wᵢ(FWHM_pred(n_s, dᵢ) − FWHM_meas,ᵢ)², wᵢ = 1/SEᵢ² when every row
  *   has an SE, else 1. Predictions are in stack (nominal) units. With nominal depths, each
  *   candidate n_s converts depth through its own GL focal-shift curve, so depth is never
- *   converted with a wrong RI;
+ *   converted with a wrong RI. Up to `exactRowLimit` distinct depths the model is evaluated at
+ *   each row depth; beyond that a `curveSampleCount`-point curve is interpolated;
  * - search: coarse grid over [minRi, maxRi], then golden section around the best grid point;
  * - axial broadening grows for either sign of n_s − n_i, so two minima can exist. When the rows
  *   carry an asymmetry, the side whose predicted asymmetry sign matches the mean measured sign is
@@ -191,7 +238,8 @@ export function fitEffectiveSampleRi(
     gridCount = 13,
     toleranceRi = 2e-4,
     maxIterations = 40,
-    curveSampleCount = 7,
+    curveSampleCount = 9,
+    exactRowLimit = 16,
   } = options;
   checkRows(rows);
   if (!(minRi >= 1 && maxRi > minRi))
@@ -201,7 +249,6 @@ export function fitEffectiveSampleRi(
   const { optics, depthKind } = setup;
   createGibsonLanniModel({ ...optics, sampleRi: (minRi + maxRi) / 2 }); // validates the optics early
   const depths = rows.map((r) => r.depthUm);
-  const range: [number, number] = [Math.min(...depths), Math.max(...depths)];
   const weighted = rows.every((r) => r.axialFwhmSeUm !== undefined);
   const weights = rows.map((r) => (weighted ? 1 / (r.axialFwhmSeUm as number) ** 2 : 1));
   const n = rows.length;
@@ -212,7 +259,7 @@ export function fitEffectiveSampleRi(
     const cached = cache.get(ri);
     if (cached !== undefined) return cached;
     evaluations++;
-    const curve = predictCurve(optics, ri, depthKind, range, curveSampleCount, false);
+    const curve = predictCurve(optics, ri, depthKind, depths, curveSampleCount, exactRowLimit, false);
     let s = 0;
     for (let i = 0; i < n; i++) {
       const r = curve.axialAt(rows[i].depthUm) - rows[i].axialFwhmUm;
@@ -288,20 +335,26 @@ export function fitEffectiveSampleRi(
     }
     sideChosenBy = "asymmetry";
   }
+  // Profile-likelihood threshold.
+  let delta = Number.NaN;
+  if (weighted) delta = 3.841 * Math.max(1, n > 1 ? best.value / (n - 1) : 1);
+  else if (n > 1) delta = (best.value / (n - 1)) * studentT975(n - 1) ** 2;
+
   const atBound = (ri: number) => ri - minRi < 2 * toleranceRi || maxRi - ri < 2 * toleranceRi;
-  // A "minimum" pinned at the search bound is only the edge of a descending slope: not an alternative.
+  // An alternative is a separate minimum on the other side of n_i that fits nearly as well
+  // (SSE within 4Δ, or within a factor 2 when Δ is unknown). A "minimum" pinned at the search
+  // bound is only the edge of a descending slope and is not reported.
+  const plausible = (value: number) =>
+    Number.isFinite(delta) ? value <= best.value + 4 * delta : value <= 2 * best.value + 1e-12;
   const alternative = minima.find(
     (m) =>
       m !== best &&
       !atBound(m.ri) &&
+      plausible(m.value) &&
       belowImmersion(m.ri) !== belowImmersion(best.ri) &&
       Math.abs(m.ri - best.ri) > 0.01,
   );
 
-  // Profile-likelihood interval.
-  let delta = Number.NaN;
-  if (weighted) delta = 3.841 * Math.max(1, n > 1 ? best.value / (n - 1) : 1);
-  else if (n > 1) delta = (best.value / (n - 1)) * studentT975(n - 1) ** 2;
   const threshold = best.value + delta;
   let intervalClipped = false;
   const bound = (direction: 1 | -1): number => {
@@ -335,7 +388,7 @@ export function fitEffectiveSampleRi(
   };
   const interval95: [number, number] = [bound(-1), bound(1)];
 
-  const curve = predictCurve(optics, best.ri, depthKind, range, curveSampleCount, true);
+  const curve = predictCurve(optics, best.ri, depthKind, depths, curveSampleCount, exactRowLimit, true);
   const fittedRows: FittedRow[] = rows.map((r) => {
     const predicted = curve.axialAt(r.depthUm);
     const lateral = curve.lateralAt(r.depthUm);

@@ -79,6 +79,16 @@ describe("gibsonLanniDepthMetrics: oil objective into water", () => {
 });
 
 describe("gibsonLanniDepthMetrics: other pairs", () => {
+  it("matched high-NA axial FWHM", () => {
+    // Source: METHODS.md §3 check values (computed here): axial FWHM 0.5909 µm for NA 1.4, n 1.515, λ 0.6 µm.
+    const m = gibsonLanniDepthMetrics(
+      { na: 1.4, wavelengthNm: 600, immersionRi: 1.515, sampleRi: 1.515, coverslipRi: 1.515 },
+      0,
+      { lateral: false, sideLobes: false },
+    );
+    expect(m.axialFwhmUm).toBeCloseToAbs(0.5909, 0.001);
+  });
+
   it("air NA 0.95 → water: lobes flip to the near side, ζ > 1", () => {
     const air = gibsonLanniDepthMetrics(
       { na: 0.95, wavelengthNm: 520, immersionRi: 1, sampleRi: 1.333, coverslipRi: 1.5255 },

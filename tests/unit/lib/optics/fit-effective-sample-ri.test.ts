@@ -62,6 +62,22 @@ describe("fitEffectiveSampleRi", () => {
     const fit = fitEffectiveSampleRi(rows, { optics, depthKind: "actual" });
     expect(fit.weighted).toBe(true);
     expect(fit.sampleRi).toBeCloseToAbs(1.38, 0.01);
+    // The model is evaluated at each row depth, so the residuals are at the noise level (±0.01 µm).
+    for (const r of fit.rows) expect(Math.abs(r.residualUm)).toBeLessThan(0.02);
+  });
+
+  it("uses an interpolated curve for many rows and still recovers the RI", () => {
+    // Known truth: 40 rows from the GL model at n_s = 1.38 (water lens), nominal depths.
+    const optics = { na: 1.2, wavelengthNm: 520, immersionRi: 1.333 };
+    const truth = predictDepthCurve(
+      { ...optics, sampleRi: 1.38 },
+      Array.from({ length: 40 }, (_, i) => 1 + i * 1.2),
+      { lateral: false, sideLobes: false },
+    );
+    const rows = truth.map((t) => ({ depthUm: t.nominalFocusUm, axialFwhmUm: t.axialFwhmUm }));
+    const fit = fitEffectiveSampleRi(rows, { optics, depthKind: "nominal" });
+    expect(fit.sampleRi).toBeCloseToAbs(1.38, 0.01);
+    expect(fit.rows[39].actualDepthUm).toBeCloseToAbs(truth[39].depthUm, 0.1);
   });
 
   it("uses the asymmetry sign to pick the side of the immersion RI", () => {
