@@ -109,7 +109,7 @@ const GOLDEN = (Math.sqrt(5) - 1) / 2;
  * actual depth (the "full wave optics" focal shift of METHODS §4.1).
  *
  * Notes: coarse-to-fine. A scan with step (matched axial FWHM)/2 covers the interval between the
- * paraxial focus n_i(d/n_s + layer term) and the RMS-optimal defocus, widened by 25 % of its
+ * paraxial focus n_i(d/n_s + layer term) and the RMS-optimal defocus, widened by 10 % of its
  * width plus three matched axial FWHM on each side; the three highest sampled local maxima are
  * refined by golden-section search on ±1 step and the best is kept (global within the window).
  *
@@ -136,8 +136,8 @@ export function findGibsonLanniFocus(
   const fwhm0 = matchedAxialFwhmUm(model);
   const { paraxialUm, rmsOptimalUm } = focusEstimatesUm(model, depthUm);
   const width = Math.abs(paraxialUm - rmsOptimalUm);
-  const lo = Math.min(paraxialUm, rmsOptimalUm) - 0.25 * width - 3 * fwhm0;
-  const hi = Math.max(paraxialUm, rmsOptimalUm) + 0.25 * width + 3 * fwhm0;
+  const lo = Math.min(paraxialUm, rmsOptimalUm) - 0.1 * width - 3 * fwhm0;
+  const hi = Math.max(paraxialUm, rmsOptimalUm) + 0.1 * width + 3 * fwhm0;
   const evaluator = makeAxialEvaluator(model, depthUm, lo, hi);
   // Coarse scan at half the matched axial FWHM (every lobe is at least that wide), then refine the
   // three highest sampled local maxima, so a side lobe sampled near its top cannot win by aliasing.

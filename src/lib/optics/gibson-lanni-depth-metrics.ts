@@ -162,7 +162,7 @@ export function gibsonLanniDepthMetrics(
   let sideLobeNear = Number.NaN;
   if (sideLobes && Number.isFinite(axialFwhmUm)) {
     const span = 4 * axialFwhmUm;
-    const step = Math.max(span / 120, fwhm0 / 10);
+    const step = Math.max(span / 80, fwhm0 / 6);
     const n = Math.ceil(span / step);
     const offsets = new Float64Array(2 * n + 1);
     for (let i = -n; i <= n; i++) offsets[i + n] = -(focus.nominalFocusUm + i * step);
