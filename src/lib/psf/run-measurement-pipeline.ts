@@ -7,6 +7,10 @@
  */
 import {
   checkSampling,
+  fitEffectiveSampleRi,
+  judgeDeclaredRi,
+  widefieldFwhm,
+  type EffectiveSampleRiFit,
   makeNominalToActualDepth,
   predictDepthCurve,
   theoreticalFwhm,
@@ -57,6 +61,10 @@ export interface MeasurementPipelineResult {
   sampling: SamplingCheck;
   depthModel: { model: string; mismatch: boolean; converged: boolean };
   prediction: PredictedDepthRow[];
+  /** The sample RI that best explains the measured axial widths against depth, or why none was fitted. */
+  effectiveRi:
+    | { fit: EffectiveSampleRiFit; consistentWithDeclared: boolean; message: string; widefieldScale: number }
+    | { fit: null; reason: string };
 }
 
 export class AnalysisInputError extends Error {
@@ -148,6 +156,8 @@ export async function runMeasurementPipeline(
     peakRelative: row.peakRelative,
     focalShiftFactor: row.focalShiftFactor,
   }));
+  onProgress?.("modelling", 0.6);
+  const effectiveRi = fitSampleRi(analysis, params, theory, gl);
   onProgress?.("modelling", 1);
 
   return {
@@ -163,5 +173,52 @@ export async function runMeasurementPipeline(
       converged: depth ? depth.converged : true,
     },
     prediction,
+    effectiveRi,
   };
+}
+
+/** Depth bins needed, and the depth they must span, before an index fit means anything. */
+const MIN_FIT_BINS = 3;
+const MIN_FIT_SPAN_UM = 3;
+
+/**
+ * Fit the effective sample RI to the per-depth median axial widths. The model is
+ * scalar widefield; for other modalities the measured widths are first scaled by
+ * the ratio of the widefield to this modality's theoretical axial FWHM, so only
+ * the relative broadening with depth drives the fit (an approximation, stated in
+ * the result).
+ */
+function fitSampleRi(
+  analysis: AnalyzeStackResult,
+  params: MeasurementParameters,
+  theory: TheoreticalFwhm,
+  gl: { na: number; wavelengthNm: number; immersionRi: number; coverslipThicknessUm: number },
+): MeasurementPipelineResult["effectiveRi"] {
+  const rows = analysis.depthProfile
+    .filter((r) => r.count >= 2 && r.fwhmZ.medianUm != null)
+    .map((r) => ({ depth: r.apparentDepthMedianUm, axial: r.fwhmZ.medianUm!, lateral: r.fwhmX.medianUm, asym: r.medianAxialAsymmetry }));
+  if (rows.length < MIN_FIT_BINS) {
+    return { fit: null, reason: `Beads fall into ${rows.length} depth bin(s); an index fit needs at least ${MIN_FIT_BINS}.` };
+  }
+  const span = Math.max(...rows.map((r) => r.depth)) - Math.min(...rows.map((r) => r.depth));
+  if (span < MIN_FIT_SPAN_UM) {
+    return { fit: null, reason: `Beads span only ${span.toFixed(1)} µm of depth; an index fit needs at least ${MIN_FIT_SPAN_UM} µm.` };
+  }
+  const widefieldAxialNm = widefieldFwhm({ na: params.na, immersionRi: params.immersionRi, wavelengthNm: params.emissionWavelengthNm }).axialNm;
+  const scale = params.modality === "widefield" ? 1 : widefieldAxialNm / theory.axialNm;
+  try {
+    const fit = fitEffectiveSampleRi(
+      rows.map((r) => ({
+        depthUm: r.depth,
+        axialFwhmUm: r.axial * scale,
+        ...(r.asym != null ? { asymmetry: r.asym } : {}),
+        ...(r.lateral != null ? { lateralFwhmUm: r.lateral } : {}),
+      })),
+      { optics: gl, depthKind: "nominal" },
+    );
+    const verdict = judgeDeclaredRi(fit, params.sampleRi);
+    return { fit, consistentWithDeclared: verdict.consistent, message: verdict.message, widefieldScale: scale };
+  } catch (err) {
+    return { fit: null, reason: `The index fit could not run: ${err instanceof Error ? err.message : String(err)}` };
+  }
 }
