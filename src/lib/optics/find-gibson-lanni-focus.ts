@@ -5,6 +5,7 @@ import {
   getGibsonLanniPupilTable,
   gibsonLanniNodeCount,
   gibsonLanniSum,
+  gibsonLanniUniformScan,
   type GibsonLanniModel,
   type GibsonLanniPupilTable,
 } from "./gibson-lanni-model";
@@ -144,11 +145,9 @@ export function findGibsonLanniFocus(
   const step = fwhm0 / 2;
   const count = Math.ceil((hi - lo) / step) + 1;
   const xs = new Float64Array(count);
-  const vs = new Float64Array(count);
-  for (let i = 0; i < count; i++) {
-    xs[i] = lo + i * step;
-    vs[i] = evaluator.at(xs[i]);
-  }
+  for (let i = 0; i < count; i++) xs[i] = lo + i * step;
+  // Nominal focus x ↔ focus offset z = −x, so the scan runs from z = −lo in steps of −step.
+  const vs = gibsonLanniUniformScan(evaluator.table, evaluator.table.weight, -lo, -step, count, depthUm);
   const candidates: number[] = [];
   for (let i = 0; i < count; i++) {
     if ((i === 0 || vs[i] >= vs[i - 1]) && (i === count - 1 || vs[i] >= vs[i + 1])) candidates.push(i);

@@ -11,9 +11,9 @@ import {
   gibsonLanniAmplitudes,
   gibsonLanniNodeCount,
   gibsonLanniSum,
+  gibsonLanniUniformScan,
   type GibsonLanniModel,
 } from "./gibson-lanni-model";
-import { gibsonLanniAxialProfile } from "./gibson-lanni-axial-profile";
 import type { GibsonLanniParams } from "./gibson-lanni-params";
 
 /** Options of {@link gibsonLanniDepthMetrics}. */
@@ -164,9 +164,14 @@ export function gibsonLanniDepthMetrics(
     const span = 4 * axialFwhmUm;
     const step = Math.max(span / 80, fwhm0 / 6);
     const n = Math.ceil(span / step);
-    const offsets = new Float64Array(2 * n + 1);
-    for (let i = -n; i <= n; i++) offsets[i + n] = -(focus.nominalFocusUm + i * step);
-    const profile = gibsonLanniAxialProfile(model, { particleDepthUm: depthUm, focusOffsetsUm: offsets });
+    const first = -(focus.nominalFocusUm - n * step);
+    const last = -(focus.nominalFocusUm + n * step);
+    const nodeCount = Math.max(
+      gibsonLanniNodeCount(model, { radiusUm: 0, focusOffsetUm: first, particleDepthUm: depthUm }),
+      gibsonLanniNodeCount(model, { radiusUm: 0, focusOffsetUm: last, particleDepthUm: depthUm }),
+    );
+    const table = getGibsonLanniPupilTable(model, nodeCount);
+    const profile = gibsonLanniUniformScan(table, table.weight, first, -step, 2 * n + 1, depthUm);
     // Index n is the peak; increasing index = deeper nominal focus = far side.
     sideLobeFar = strongestLobe(profile, n, 1) / peak;
     sideLobeNear = strongestLobe(profile, n, -1) / peak;

@@ -269,3 +269,57 @@ export function checkGibsonLanniPoint(point: GibsonLanniPoint): void {
     throw new RangeError(`Gibson–Lanni: particleDepthUm must be finite and ≥ 0, got ${particleDepthUm}`);
   }
 }
+
+/**
+ * Normalised on-grid intensities 4·|Σⱼ aⱼ exp(iφⱼ(z))|² for equally spaced focus offsets
+ * z = z₀ + i·Δz, i = 0…count−1 (internal fast path for axial scans).
+ *
+ * Notes: instead of a cosine and a sine per node and sample, each node's phasor is advanced by
+ * the fixed rotation exp(i·k√(n_i² − s²)·Δz) (one complex multiply). The rounding error grows
+ * by ~10⁻¹⁶ per step, negligible for the few hundred steps used.
+ *
+ * @param table - pupil table
+ * @param amplitudes - weight·J₀ per node
+ * @param firstFocusOffsetUm - z₀, µm
+ * @param stepUm - Δz, µm
+ * @param count - number of samples
+ * @param particleDepthUm - z_p, µm
+ * @returns intensities relative to the ideal in-focus peak
+ */
+export function gibsonLanniUniformScan(
+  table: GibsonLanniPupilTable,
+  amplitudes: Float64Array,
+  firstFocusOffsetUm: number,
+  stepUm: number,
+  count: number,
+  particleDepthUm: number,
+): Float64Array {
+  const n = table.nodeCount;
+  const re = new Float64Array(n);
+  const im = new Float64Array(n);
+  const rotRe = new Float64Array(n);
+  const rotIm = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const phase =
+      table.kImmersion[j] * firstFocusOffsetUm + table.kSample[j] * particleDepthUm + table.phaseConstant[j];
+    re[j] = amplitudes[j] * Math.cos(phase);
+    im[j] = amplitudes[j] * Math.sin(phase);
+    rotRe[j] = Math.cos(table.kImmersion[j] * stepUm);
+    rotIm[j] = Math.sin(table.kImmersion[j] * stepUm);
+  }
+  const out = new Float64Array(count);
+  for (let i = 0; i < count; i++) {
+    let sumRe = 0;
+    let sumIm = 0;
+    for (let j = 0; j < n; j++) {
+      const r = re[j];
+      const m = im[j];
+      sumRe += r;
+      sumIm += m;
+      re[j] = r * rotRe[j] - m * rotIm[j];
+      im[j] = r * rotIm[j] + m * rotRe[j];
+    }
+    out[i] = 4 * (sumRe * sumRe + sumIm * sumIm);
+  }
+  return out;
+}

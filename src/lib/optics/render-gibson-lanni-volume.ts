@@ -3,7 +3,7 @@ import {
   getGibsonLanniPupilTable,
   gibsonLanniAmplitudes,
   gibsonLanniNodeCount,
-  gibsonLanniSum,
+  gibsonLanniUniformScan,
   type GibsonLanniModel,
 } from "./gibson-lanni-model";
 import type { GibsonLanniParams } from "./gibson-lanni-params";
@@ -51,7 +51,8 @@ export interface GibsonLanniVolume {
  * Notes: for each plane the intensity is computed on a 1D radial grid (spacing = smallest lateral
  * pixel / radialOversampling, out to the farthest corner) and linearly interpolated onto pixel
  * centres, because the PSF is rotationally symmetric (METHODS §3). The J₀ amplitudes of the radial
- * grid are computed once and reused for every plane. Pixel (x, y) has its centre at (x, y) px.
+ * grid are computed once, and each radius is swept through all (equally spaced) planes by phasor
+ * rotation. Pixel (x, y) has its centre at (x, y) px.
  *
  * References: Gibson & Lanni, JOSA A 8(10):1601 (1991); METHODS.md §3.
  *
@@ -122,8 +123,14 @@ export function renderGibsonLanniVolume(
     }
   }
   const table = getGibsonLanniPupilTable(model, nodeCount);
-  const amplitudes: Float64Array[] = [];
-  for (let i = 0; i < nr; i++) amplitudes.push(gibsonLanniAmplitudes(model, table, i * stepUm));
+  // Planes are equally spaced in focus, so each radius gets one fast uniform scan over all planes.
+  const columns: Float64Array[] = [];
+  for (let i = 0; i < nr; i++) {
+    const amplitudes = gibsonLanniAmplitudes(model, table, i * stepUm);
+    columns.push(
+      gibsonLanniUniformScan(table, amplitudes, -nominalFocusUm[0], -voxelSizeUm.z, nz, particleDepthUm),
+    );
+  }
 
   // Distance of each pixel from the source, in radial-grid units (same for every plane).
   const radialIndex = new Float64Array(ny * nx);
@@ -138,9 +145,7 @@ export function renderGibsonLanniVolume(
   const data = new Float32Array(nz * ny * nx);
   const radial = new Float64Array(nr);
   for (let k = 0; k < nz; k++) {
-    const focusOffsetUm = -nominalFocusUm[k];
-    for (let i = 0; i < nr; i++)
-      radial[i] = gibsonLanniSum(table, amplitudes[i], focusOffsetUm, particleDepthUm);
+    for (let i = 0; i < nr; i++) radial[i] = columns[i][k];
     const offset = k * ny * nx;
     for (let p = 0; p < ny * nx; p++) {
       const u = radialIndex[p];

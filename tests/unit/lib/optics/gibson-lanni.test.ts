@@ -213,3 +213,38 @@ describe("Gibson–Lanni parameter checks", () => {
     expect(JSON.stringify(params)).toBe(copy);
   });
 });
+
+describe("uniform axial scan fast path", () => {
+  it("equals point-by-point evaluation", () => {
+    // Consistency: the phasor-rotation scan must reproduce the direct Gibson–Lanni sums.
+    const model = createGibsonLanniModel(oilToWater13);
+    const offsets = Array.from({ length: 200 }, (_, i) => -8 - i * 0.05);
+    const profile = gibsonLanniAxialProfile(model, { particleDepthUm: 10, focusOffsetsUm: offsets });
+    for (let i = 0; i < offsets.length; i += 37) {
+      expect(profile[i]).toBeCloseTo(
+        gibsonLanniIntensity(
+          model,
+          { radiusUm: 0, focusOffsetUm: offsets[i], particleDepthUm: 10 },
+          { nodeCount: 512 },
+        ),
+        9,
+      );
+    }
+    const vol = renderGibsonLanniVolume(model, {
+      shape: [60, 3, 3],
+      voxelSizeUm: { x: 0.1, y: 0.1, z: 0.1 },
+      particleDepthUm: 10,
+      firstPlaneNominalFocusUm: 9,
+    });
+    for (let k = 0; k < 60; k += 13) {
+      expect(vol.data[k * 9 + 4]).toBeCloseTo(
+        gibsonLanniIntensity(
+          model,
+          { radiusUm: 0, focusOffsetUm: -(9 + k * 0.1), particleDepthUm: 10 },
+          { nodeCount: 512 },
+        ),
+        5,
+      );
+    }
+  });
+});
