@@ -89,6 +89,11 @@ describe("mutation corpus: every case reads or throws TiffInputError, fast", () 
       n++;
       const t0 = performance.now();
       try {
+        await inspectTiff(m.bytes);
+      } catch (e) {
+        if (!(e instanceof TiffInputError)) throw new Error(`inspectTiff, case ${n} (${m.kind} of ${m.base}, seed ${m.seed}) threw ${String(e)}`);
+      }
+      try {
         await readTiffStack(m.bytes);
         counts.read++;
       } catch (e) {

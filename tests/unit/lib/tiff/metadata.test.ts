@@ -157,3 +157,18 @@ describe("mergeUserMetadata", () => {
     expect(() => mergeUserMetadata(m, { numericalAperture: Number.NaN })).toThrow(RangeError);
   });
 });
+
+describe("page bookkeeping", () => {
+  it("warns about pages beyond the ImageJ image count and refuses fewer pages than declared", async () => {
+    const extra = await inspect({ description: "ImageJ=1.54f\nimages=2\nslices=2\nunit=micron\nspacing=0.2\n" });
+    expect(extra.slices.value).toBe(2);
+    expect(extra.warnings.map((w) => w.code)).toContain("extra_pages");
+    await expect(inspect({ description: "ImageJ=1.54f\nimages=6\nslices=6\n" })).rejects.toMatchObject({ code: "bad_metadata" });
+  });
+  it("skips reduced-resolution pages (NewSubfileType bit 0) with a warning", async () => {
+    const m = await inspect({ extraTags: (p) => (p === 2 ? [{ tag: 254, type: 4, values: [1] }] : []) });
+    expect(m.slices.value).toBe(2);
+    expect(m.pageCount).toBe(3);
+    expect(m.warnings.map((w) => w.code)).toContain("reduced_resolution_pages");
+  });
+});
