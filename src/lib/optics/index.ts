@@ -14,6 +14,7 @@ export {
   type GibsonLanniModel,
   type GibsonLanniPoint,
   type GibsonLanniIntensityOptions,
+  type GibsonLanniPupilTable,
 } from "./gibson-lanni-model";
 export { gibsonLanniAxialProfile, type GibsonLanniAxialProfileOptions } from "./gibson-lanni-axial-profile";
 export {
