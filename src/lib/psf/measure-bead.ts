@@ -220,7 +220,7 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
 
   const axialFwhmUm = Math.min(Math.max(out.fwhmZUm ?? expectedFwhmUm.axial, expectedFwhmUm.axial), 4 * expectedFwhmUm.axial);
 
-  // 3D fit on ±1.5 FWHM (lateral expected, axial measured), clipped to the stack.
+  // 3D fit on the ellipsoid of semi-axes 1.5 FWHM (lateral expected, axial measured), clipped to the stack.
   if (options.fit3d && !out.fitFailed) {
     const wx = Math.max(2, Math.ceil((1.5 * expectedFwhmUm.lateral) / vs.x));
     const wy = Math.max(2, Math.ceil((1.5 * expectedFwhmUm.lateral) / vs.y));
@@ -240,6 +240,7 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
       {
         rotation: options.fit3dRotation,
         maxIterations: options.maxIterations3d,
+        ellipsoidal: true,
         seed: {
           background: bg,
           amplitude: out.amplitude ?? undefined,
