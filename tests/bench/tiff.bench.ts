@@ -51,7 +51,9 @@ async function timeIt(fn: () => Promise<void>, repeats: number): Promise<number>
 }
 
 async function geotiffRead(bytes: Uint8Array): Promise<Uint16Array> {
-  const tiff = await fromArrayBuffer(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
+  const tiff = await fromArrayBuffer(
+    bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer,
+  );
   const n = await tiff.getImageCount();
   const out = new Uint16Array(SHAPE[0] * SHAPE[1] * SHAPE[2]);
   const plane = SHAPE[1] * SHAPE[2];
@@ -93,32 +95,68 @@ export async function run(): Promise<Array<{ name: string; value: number; unit: 
   const rows: Array<{ name: string; value: number; unit: string; target?: string }> = [];
   try {
     const stack = makeSyntheticStack({
-      shape: SHAPE, voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 }, beads: sampleBeads(5, SHAPE, 150, 3000), seed: 5,
+      shape: SHAPE,
+      voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 },
+      beads: sampleBeads(5, SHAPE, 150, 3000),
+      seed: 5,
     });
     const base = join(dir, "uncompressed.tif");
-    writeFileSync(base, writeTiff(stackToPages(stack), { description: "ImageJ=1.54f\nimages=200\nslices=200\nunit=micron\nspacing=0.2\n" }));
+    writeFileSync(
+      base,
+      writeTiff(stackToPages(stack), {
+        description: "ImageJ=1.54f\nimages=200\nslices=200\nunit=micron\nspacing=0.2\n",
+      }),
+    );
     for (const f of FLAVOURS) {
       const file = join(dir, `${f.name}.tif`);
       if (f.args) execFileSync("tiffcp", [...f.args, base, file], { stdio: "pipe" });
       const bytes = new Uint8Array(readFileSync(file));
       // Check correctness once before timing.
       const { stack: got } = await readTiffStack(bytes, { maxBytes: 4e9 });
-      for (let i = 0; i < got.data.length; i += 9973) if (got.data[i] !== stack.data[i]) throw new Error(`${f.name}: wrong voxel ${i}`);
+      for (let i = 0; i < got.data.length; i += 9973)
+        if (got.data[i] !== stack.data[i]) throw new Error(`${f.name}: wrong voxel ${i}`);
       const ours = await timeIt(async () => void (await readTiffStack(bytes, { maxBytes: 4e9 })), 3);
       const target = f.target !== undefined ? `>= ${f.target}` : undefined;
-      rows.push({ name: `readTiffStack ${f.name} (file ${(bytes.length / 1e6).toFixed(1)} MB)`, value: round(STACK_MB / ours), unit: "MB/s", target });
+      rows.push({
+        name: `readTiffStack ${f.name} (file ${(bytes.length / 1e6).toFixed(1)} MB)`,
+        value: round(STACK_MB / ours),
+        unit: "MB/s",
+        target,
+      });
       if (f.name.startsWith("deflate")) {
-        const native = await timeIt(async () => void (await readTiffStack(bytes, { maxBytes: 4e9, inflate: nativeInflate })), 3);
-        rows.push({ name: `readTiffStack ${f.name}, inflate = node:zlib (injected)`, value: round(STACK_MB / native), unit: "MB/s", target });
+        const native = await timeIt(
+          async () => void (await readTiffStack(bytes, { maxBytes: 4e9, inflate: nativeInflate })),
+          3,
+        );
+        rows.push({
+          name: `readTiffStack ${f.name}, inflate = node:zlib (injected)`,
+          value: round(STACK_MB / native),
+          unit: "MB/s",
+          target,
+        });
       }
       const slow = f.name.startsWith("lzw");
       const theirs = await timeIt(async () => void (await geotiffRead(bytes)), slow ? 1 : 2);
       rows.push({ name: `geotiff readRasters ${f.name}`, value: round(STACK_MB / theirs), unit: "MB/s" });
     }
-    for (const name of ["uncompressed", "deflate-predictor", "lzw-predictor", "deflate-predictor-tiled-128"]) {
-      const out = execFileSync(process.execPath, ["--import", "tsx", fileURLToPath(import.meta.url), "--rss", join(dir, `${name}.tif`)], { encoding: "utf8" });
+    for (const name of [
+      "uncompressed",
+      "deflate-predictor",
+      "lzw-predictor",
+      "deflate-predictor-tiled-128",
+    ]) {
+      const out = execFileSync(
+        process.execPath,
+        ["--import", "tsx", fileURLToPath(import.meta.url), "--rss", join(dir, `${name}.tif`)],
+        { encoding: "utf8" },
+      );
       const r = JSON.parse(out) as { baseline: number; peak: number; stackBytes: number };
-      rows.push({ name: `peak RSS beyond baseline, ${name} (× stack bytes)`, value: round((r.peak - r.baseline) / r.stackBytes), unit: "×", target: "<= 2" });
+      rows.push({
+        name: `peak RSS beyond baseline, ${name} (× stack bytes)`,
+        value: round((r.peak - r.baseline) / r.stackBytes),
+        unit: "×",
+        target: "<= 2",
+      });
     }
   } finally {
     rmSync(dir, { recursive: true, force: true });
@@ -134,6 +172,7 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
   if (process.argv[2] === "--rss") {
     await rssChild(process.argv[3]);
   } else {
-    for (const r of await run()) console.log(`${r.name}: ${r.value} ${r.unit}${r.target ? ` (target ${r.target})` : ""}`);
+    for (const r of await run())
+      console.log(`${r.name}: ${r.value} ${r.unit}${r.target ? ` (target ${r.target})` : ""}`);
   }
 }

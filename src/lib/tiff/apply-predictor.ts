@@ -54,13 +54,19 @@ export function applyPredictor(
         for (let i = base + 1; i < base + width; i++) a[i] = (a[i] + a[i - 1]) >>> 0;
       }
     } else {
-      throw new TiffInputError("unsupported_compression", `Predictor 2 with ${bytesPerSample * 8}-bit samples is not supported.`);
+      throw new TiffInputError(
+        "unsupported_compression",
+        `Predictor 2 with ${bytesPerSample * 8}-bit samples is not supported.`,
+      );
     }
     return bytes;
   }
   if (predictor === 3) {
     if (bytesPerSample !== 4) {
-      throw new TiffInputError("unsupported_compression", `Floating-point predictor with ${bytesPerSample * 8}-bit samples is not supported.`);
+      throw new TiffInputError(
+        "unsupported_compression",
+        `Floating-point predictor with ${bytesPerSample * 8}-bit samples is not supported.`,
+      );
     }
     const rowBytes = width * 4;
     const out = new Uint8Array(rows * rowBytes);
@@ -80,5 +86,7 @@ export function applyPredictor(
     }
     return out;
   }
-  throw new TiffInputError("unsupported_compression", `Predictor ${predictor} is not supported.`, { predictor });
+  throw new TiffInputError("unsupported_compression", `Predictor ${predictor} is not supported.`, {
+    predictor,
+  });
 }

@@ -38,6 +38,9 @@ export function decodeDeflate(input: Uint8Array, out: Uint8Array): number {
     return Math.min(result.length, out.length);
   } catch (e) {
     if (e instanceof TiffInputError) throw e;
-    throw new TiffInputError("corrupt_data", `Deflate data could not be inflated (${e instanceof Error ? e.message : String(e)}).`);
+    throw new TiffInputError(
+      "corrupt_data",
+      `Deflate data could not be inflated (${e instanceof Error ? e.message : String(e)}).`,
+    );
   }
 }

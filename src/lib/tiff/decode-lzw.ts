@@ -29,7 +29,10 @@ export function decodeLzw(input: Uint8Array, out: Uint8Array): number {
   const inLen = input.length;
   if (inLen >= 2 && input[0] === 0 && (input[1] & 1) === 1) {
     // Source: TIFF 6.0 specification, section 13 — old-style LSB-first LZW starts 0x00 0x01 (from memory).
-    throw new TiffInputError("unsupported_compression", "Old-style (pre-TIFF 6.0, LSB-first) LZW data is not supported.");
+    throw new TiffInputError(
+      "unsupported_compression",
+      "Old-style (pre-TIFF 6.0, LSB-first) LZW data is not supported.",
+    );
   }
   const outLen = out.length;
   const entryOffset = new Int32Array(TABLE_SIZE);
@@ -66,7 +69,9 @@ export function decodeLzw(input: Uint8Array, out: Uint8Array): number {
       out[outPos] = code;
       len = 1;
     } else if (prevStart < 0) {
-      throw new TiffInputError("corrupt_data", `LZW data (re)starts with code ${code}, not a literal.`, { code });
+      throw new TiffInputError("corrupt_data", `LZW data (re)starts with code ${code}, not a literal.`, {
+        code,
+      });
     } else if (code < nextCode) {
       const src = entryOffset[code];
       len = entryLength[code];
@@ -81,7 +86,11 @@ export function decodeLzw(input: Uint8Array, out: Uint8Array): number {
       for (let k = 0; k < lim; k++) out[outPos + k] = out[prevStart + k];
       if (outPos + prevLen < outLen) out[outPos + prevLen] = out[prevStart];
     } else {
-      throw new TiffInputError("corrupt_data", `LZW code ${code} is beyond the table (next free code ${nextCode}).`, { code, nextCode });
+      throw new TiffInputError(
+        "corrupt_data",
+        `LZW code ${code} is beyond the table (next free code ${nextCode}).`,
+        { code, nextCode },
+      );
     }
     outPos += len;
     if (prevStart >= 0) {

@@ -68,7 +68,8 @@ export function decodePage(
   const tw = page.tileWidth;
   const th = page.tileHeight;
   const tileBytes = tw * th * bps;
-  const buf = scratch && scratch.byteLength >= tileBytes ? scratch.subarray(0, tileBytes) : new Uint8Array(tileBytes);
+  const buf =
+    scratch && scratch.byteLength >= tileBytes ? scratch.subarray(0, tileBytes) : new Uint8Array(tileBytes);
   const across = Math.ceil(width / tw);
   for (let k = 0; k < offsets.length; k++) {
     const tx = (k % across) * tw;
@@ -94,14 +95,24 @@ function chunk(file: Uint8Array, offset: number, count: number): Uint8Array {
   return file.subarray(offset, offset + count);
 }
 
-function decodeChunk(src: Uint8Array, dst: Uint8Array, page: PageLayout, k: number, inflate: InflateFunction): void {
+function decodeChunk(
+  src: Uint8Array,
+  dst: Uint8Array,
+  page: PageLayout,
+  k: number,
+  inflate: InflateFunction,
+): void {
   let n: number;
   switch (page.compression) {
     case 1:
       n = Math.min(src.length, dst.length);
       dst.set(n === src.length ? src : src.subarray(0, n));
       if (n < dst.length) {
-        throw new TiffInputError("truncated", `Uncompressed strip/tile ${k} of page ${page.ifdIndex} holds ${src.length} bytes; ${dst.length} are needed.`, { page: page.ifdIndex, chunk: k });
+        throw new TiffInputError(
+          "truncated",
+          `Uncompressed strip/tile ${k} of page ${page.ifdIndex} holds ${src.length} bytes; ${dst.length} are needed.`,
+          { page: page.ifdIndex, chunk: k },
+        );
       }
       return;
     case 5:
@@ -113,17 +124,29 @@ function decodeChunk(src: Uint8Array, dst: Uint8Array, page: PageLayout, k: numb
         n = inflate(src, dst);
       } catch (e) {
         if (e instanceof TiffInputError) throw e;
-        throw new TiffInputError("corrupt_data", `Deflate data of strip/tile ${k} of page ${page.ifdIndex} could not be inflated.`, { page: page.ifdIndex, chunk: k });
+        throw new TiffInputError(
+          "corrupt_data",
+          `Deflate data of strip/tile ${k} of page ${page.ifdIndex} could not be inflated.`,
+          { page: page.ifdIndex, chunk: k },
+        );
       }
       break;
     case 32773:
       n = decodePackbits(src, dst);
       break;
     default:
-      throw new TiffInputError("unsupported_compression", `TIFF compression ${page.compression} is not supported.`, { compression: page.compression });
+      throw new TiffInputError(
+        "unsupported_compression",
+        `TIFF compression ${page.compression} is not supported.`,
+        { compression: page.compression },
+      );
   }
   if (n < dst.length) {
-    throw new TiffInputError("corrupt_data", `Strip/tile ${k} of page ${page.ifdIndex} decoded to ${n} bytes; ${dst.length} were expected.`, { page: page.ifdIndex, chunk: k, decoded: n, expected: dst.length });
+    throw new TiffInputError(
+      "corrupt_data",
+      `Strip/tile ${k} of page ${page.ifdIndex} decoded to ${n} bytes; ${dst.length} were expected.`,
+      { page: page.ifdIndex, chunk: k, decoded: n, expected: dst.length },
+    );
   }
 }
 

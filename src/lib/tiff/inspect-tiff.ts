@@ -21,7 +21,10 @@ import { toBytes } from "./to-bytes";
  * const meta = await inspectTiff(bytes);
  * if (meta.voxelSizeUm.z === null) askUserForZStep();
  */
-export async function inspectTiff(input: ArrayBuffer | Uint8Array, options: TiffReadOptions = {}): Promise<TiffMetadata> {
+export async function inspectTiff(
+  input: ArrayBuffer | Uint8Array,
+  options: TiffReadOptions = {},
+): Promise<TiffMetadata> {
   const { metadata } = await planTiffStack(toBytes(input), options);
   return metadata;
 }

@@ -40,13 +40,16 @@ export interface UserMetadataValues {
 export function mergeUserMetadata(metadata: TiffMetadata, userValues: UserMetadataValues): TiffMetadata {
   const positive = (name: string, v: number | undefined): Sourced<number> | undefined => {
     if (v === undefined) return undefined;
-    if (typeof v !== "number" || !Number.isFinite(v) || v <= 0) throw new RangeError(`${name} must be a positive finite number (got ${String(v)}).`);
+    if (typeof v !== "number" || !Number.isFinite(v) || v <= 0)
+      throw new RangeError(`${name} must be a positive finite number (got ${String(v)}).`);
     return { value: v, source: "user" };
   };
-  const text = (v: string | undefined): Sourced<string> | undefined => (v === undefined ? undefined : { value: v, source: "user" });
+  const text = (v: string | undefined): Sourced<string> | undefined =>
+    v === undefined ? undefined : { value: v, source: "user" };
   const finite = (name: string, v: number | undefined): Sourced<number> | undefined => {
     if (v === undefined) return undefined;
-    if (typeof v !== "number" || !Number.isFinite(v)) throw new RangeError(`${name} must be a finite number (got ${String(v)}).`);
+    if (typeof v !== "number" || !Number.isFinite(v))
+      throw new RangeError(`${name} must be a finite number (got ${String(v)}).`);
     return { value: v, source: "user" };
   };
   const u = userValues;
@@ -65,9 +68,12 @@ export function mergeUserMetadata(metadata: TiffMetadata, userValues: UserMetada
     numericalAperture: positive("numericalAperture", u.numericalAperture) ?? metadata.numericalAperture,
     immersion: text(u.immersion) ?? metadata.immersion,
     magnification: positive("magnification", u.magnification) ?? metadata.magnification,
-    immersionRefractiveIndex: positive("immersionRefractiveIndex", u.immersionRefractiveIndex) ?? metadata.immersionRefractiveIndex,
-    emissionWavelengthNm: positive("emissionWavelengthNm", u.emissionWavelengthNm) ?? metadata.emissionWavelengthNm,
-    excitationWavelengthNm: positive("excitationWavelengthNm", u.excitationWavelengthNm) ?? metadata.excitationWavelengthNm,
+    immersionRefractiveIndex:
+      positive("immersionRefractiveIndex", u.immersionRefractiveIndex) ?? metadata.immersionRefractiveIndex,
+    emissionWavelengthNm:
+      positive("emissionWavelengthNm", u.emissionWavelengthNm) ?? metadata.emissionWavelengthNm,
+    excitationWavelengthNm:
+      positive("excitationWavelengthNm", u.excitationWavelengthNm) ?? metadata.excitationWavelengthNm,
     pinholeSizeUm: positive("pinholeSizeUm", u.pinholeSizeUm) ?? metadata.pinholeSizeUm,
     acquisitionMode: text(u.acquisitionMode) ?? metadata.acquisitionMode,
     temperatureC: finite("temperatureC", u.temperatureC) ?? metadata.temperatureC,

@@ -87,20 +87,28 @@ export function parseOmeXml(text: string, ifdCount: number): OmeMetadata {
     });
     doc = parser.parse(text, true) as XmlNode;
   } catch (e) {
-    throw new TiffInputError("bad_metadata", `The OME-XML description is not well-formed XML (${e instanceof Error ? e.message.slice(0, 200) : "parse error"}).`);
+    throw new TiffInputError(
+      "bad_metadata",
+      `The OME-XML description is not well-formed XML (${e instanceof Error ? e.message.slice(0, 200) : "parse error"}).`,
+    );
   }
   const warnings: string[] = [];
   const ome = obj(doc.OME);
   const images = arr(ome?.Image);
   const image = obj(images[0]);
   const pixels = obj(image?.Pixels);
-  if (!ome || !image || !pixels) throw new TiffInputError("bad_metadata", "The OME-XML description has no OME/Image/Pixels element.");
-  if (images.length > 1) warnings.push(`The OME-XML describes ${images.length} images; only the first is read.`);
+  if (!ome || !image || !pixels)
+    throw new TiffInputError("bad_metadata", "The OME-XML description has no OME/Image/Pixels element.");
+  if (images.length > 1)
+    warnings.push(`The OME-XML describes ${images.length} images; only the first is read.`);
 
   const size = (k: string): number => {
     const v = num(pixels[`@${k}`]);
     if (v === null || !Number.isInteger(v) || v < 1) {
-      throw new TiffInputError("bad_metadata", `OME-XML Pixels@${k} is missing or not a positive integer (${String(pixels[`@${k}`])}).`);
+      throw new TiffInputError(
+        "bad_metadata",
+        `OME-XML Pixels@${k} is missing or not a positive integer (${String(pixels[`@${k}`])}).`,
+      );
     }
     return v;
   };
@@ -111,10 +119,17 @@ export function parseOmeXml(text: string, ifdCount: number): OmeMetadata {
   const sizeT = size("SizeT");
   const dimensionOrder = str(pixels["@DimensionOrder"]) ?? "XYZCT";
   if (!/^XY(ZCT|ZTC|CZT|CTZ|TZC|TCZ)$/.test(dimensionOrder)) {
-    throw new TiffInputError("bad_metadata", `OME-XML DimensionOrder "${dimensionOrder}" is not one of the six XY… orders.`);
+    throw new TiffInputError(
+      "bad_metadata",
+      `OME-XML DimensionOrder "${dimensionOrder}" is not one of the six XY… orders.`,
+    );
   }
   const nPlanes = sizeZ * sizeC * sizeT;
-  if (nPlanes > MAX_PLANES) throw new TiffInputError("bad_metadata", `OME-XML declares ${nPlanes} planes (SizeZ×SizeC×SizeT), more than ${MAX_PLANES}.`);
+  if (nPlanes > MAX_PLANES)
+    throw new TiffInputError(
+      "bad_metadata",
+      `OME-XML declares ${nPlanes} planes (SizeZ×SizeC×SizeT), more than ${MAX_PLANES}.`,
+    );
 
   const physical = (axis: "X" | "Y" | "Z"): number | null => {
     const raw = pixels[`@PhysicalSize${axis}`];
@@ -149,7 +164,9 @@ export function parseOmeXml(text: string, ifdCount: number): OmeMetadata {
     for (let i = dims.length - 1; i >= 0; i--) r = r * sizes[dims[i]] + coord[dims[i]];
     return r;
   };
-  const tiffData = arr(pixels.TiffData).map(obj).filter((x): x is XmlNode => x !== null);
+  const tiffData = arr(pixels.TiffData)
+    .map(obj)
+    .filter((x): x is XmlNode => x !== null);
   if (tiffData.length === 0) {
     for (let p = 0; p < nPlanes; p++) planeToIfd[toOurIndex(p)] = p < ifdCount ? p : -1;
   } else {
@@ -160,8 +177,16 @@ export function parseOmeXml(text: string, ifdCount: number): OmeMetadata {
       const firstT = num(td["@FirstT"]) ?? 0;
       const planeCount = num(td["@PlaneCount"]) ?? (ifd !== null ? 1 : nPlanes);
       const ints = [ifd ?? 0, firstZ, firstC, firstT, planeCount];
-      if (ints.some((v) => !Number.isInteger(v) || v < 0) || firstZ >= sizeZ || firstC >= sizeC || firstT >= sizeT) {
-        throw new TiffInputError("bad_metadata", "OME-XML TiffData has an invalid IFD, FirstZ/C/T or PlaneCount.");
+      if (
+        ints.some((v) => !Number.isInteger(v) || v < 0) ||
+        firstZ >= sizeZ ||
+        firstC >= sizeC ||
+        firstT >= sizeT
+      ) {
+        throw new TiffInputError(
+          "bad_metadata",
+          "OME-XML TiffData has an invalid IFD, FirstZ/C/T or PlaneCount.",
+        );
       }
       const start = rasterOf(firstZ, firstC, firstT);
       for (let k = 0; k < planeCount && start + k < nPlanes; k++) {
@@ -183,20 +208,35 @@ export function parseOmeXml(text: string, ifdCount: number): OmeMetadata {
   });
 
   const settings = obj(image.ObjectiveSettings);
-  const objectives = arr(ome.Instrument).flatMap((i) => arr(obj(i)?.Objective)).map(obj).filter((x): x is XmlNode => x !== null);
+  const objectives = arr(ome.Instrument)
+    .flatMap((i) => arr(obj(i)?.Objective))
+    .map(obj)
+    .filter((x): x is XmlNode => x !== null);
   const settingsId = str(settings?.["@ID"]);
-  const objectiveNode = (settingsId ? objectives.find((o) => str(o["@ID"]) === settingsId) : undefined) ?? (objectives.length === 1 ? objectives[0] : undefined);
+  const objectiveNode =
+    (settingsId ? objectives.find((o) => str(o["@ID"]) === settingsId) : undefined) ??
+    (objectives.length === 1 ? objectives[0] : undefined);
   const objective = objectiveNode
-    ? { lensNa: num(objectiveNode["@LensNA"]), immersion: str(objectiveNode["@Immersion"]), nominalMagnification: num(objectiveNode["@NominalMagnification"]) }
+    ? {
+        lensNa: num(objectiveNode["@LensNA"]),
+        immersion: str(objectiveNode["@Immersion"]),
+        nominalMagnification: num(objectiveNode["@NominalMagnification"]),
+      }
     : null;
 
   const env = obj(image.ImagingEnvironment);
   const temperatureC = temperatureToC(env?.["@Temperature"], env?.["@TemperatureUnit"]);
-  const acquisitionDate = str(typeof image.AcquisitionDate === "object" ? obj(image.AcquisitionDate)?.["#text"] : image.AcquisitionDate);
+  const acquisitionDate = str(
+    typeof image.AcquisitionDate === "object" ? obj(image.AcquisitionDate)?.["#text"] : image.AcquisitionDate,
+  );
 
   return {
     imageCount: images.length,
-    sizeX, sizeY, sizeZ, sizeC, sizeT,
+    sizeX,
+    sizeY,
+    sizeZ,
+    sizeC,
+    sizeT,
     dimensionOrder,
     pixelType: str(pixels["@Type"]),
     physicalSizeUm: { x: physical("X"), y: physical("Y"), z: physical("Z") },

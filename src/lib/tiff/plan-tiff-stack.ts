@@ -103,7 +103,7 @@ export async function planTiffStack(bytes: Uint8Array, options: TiffReadOptions 
   const pageTags = async (i: number): Promise<PageTags> => {
     const cached = tagCache[i];
     if (cached) return cached;
-    const t = await readPageTags(tiff, i, structure, bytes);
+    const t = await readPageTags(tiff, i, structure);
     tagCache[i] = t;
     return t;
   };
@@ -302,7 +302,7 @@ interface PageTags {
   resolutionUnit: number;
 }
 
-async function readPageTags(tiff: GeoTIFF, i: number, structure: TiffStructure, bytes: Uint8Array): Promise<PageTags> {
+async function readPageTags(tiff: GeoTIFF, i: number, structure: TiffStructure): Promise<PageTags> {
   const entries = structure.ifds[i].entries;
   try {
     const image = await tiff.getImage(i);

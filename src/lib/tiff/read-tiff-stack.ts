@@ -31,8 +31,8 @@ export interface TiffStackResult {
  * Decode a TIFF z-stack.
  *
  * @param input - the whole file (not copied; not modified)
- * @param options - see `ReadTiffStackOptions`: `inflate` (@default fflate), `channel` (0-based, @default 0), `frame` (@default 0),
- *   `minSlices` (@default 2), `maxVoxels` (@default 2^29), `maxBytes` (@default 2 GiB), `maxPages` (@default 65536)
+ * @param options - see `ReadTiffStackOptions` (channel/frame selection, limits, optional native inflate;
+ *   defaults are documented there once)
  * @returns the stack (data row-major (z, y, x), native byte order) and its metadata record
  * @throws {TiffInputError} codes `not_tiff`, `truncated`, `corrupt_ifd`, `ifd_loop`, `corrupt_data`,
  *   `not_a_stack`, `multi_sample`, `inconsistent_pages`, `too_large`, `unsupported_sample_format`,

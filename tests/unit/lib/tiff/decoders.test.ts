@@ -1,7 +1,13 @@
 import { describe, expect, it } from "vitest";
 import { zlibSync } from "fflate";
 import { makeRng } from "../../../../fixtures/synthetic-stack";
-import { applyPredictor, decodeDeflate, decodeLzw, decodePackbits, TiffInputError } from "../../../../src/lib/tiff";
+import {
+  applyPredictor,
+  decodeDeflate,
+  decodeLzw,
+  decodePackbits,
+  TiffInputError,
+} from "../../../../src/lib/tiff";
 
 /**
  * Minimal TIFF LZW encoder for round-trip tests (MSB-first codes, 9–12 bits, early change,
@@ -77,8 +83,26 @@ describe("decodeLzw", () => {
 describe("decodePackbits", () => {
   it("decodes the specification's example", () => {
     // Source: TIFF 6.0 specification, section 9 "PackBits Compression", worked example (from memory).
-    const packed = Uint8Array.from([0xfe, 0xaa, 0x02, 0x80, 0x00, 0x2a, 0xfd, 0xaa, 0x03, 0x80, 0x00, 0x2a, 0x22, 0xf7, 0xaa]);
-    const expected = [0xaa, 0xaa, 0xaa, 0x80, 0x00, 0x2a, 0xaa, 0xaa, 0xaa, 0xaa, 0x80, 0x00, 0x2a, 0x22, ...new Array(10).fill(0xaa)];
+    const packed = Uint8Array.from([
+      0xfe, 0xaa, 0x02, 0x80, 0x00, 0x2a, 0xfd, 0xaa, 0x03, 0x80, 0x00, 0x2a, 0x22, 0xf7, 0xaa,
+    ]);
+    const expected = [
+      0xaa,
+      0xaa,
+      0xaa,
+      0x80,
+      0x00,
+      0x2a,
+      0xaa,
+      0xaa,
+      0xaa,
+      0xaa,
+      0x80,
+      0x00,
+      0x2a,
+      0x22,
+      ...new Array(10).fill(0xaa),
+    ];
     const out = new Uint8Array(expected.length);
     expect(decodePackbits(packed, out)).toBe(expected.length);
     expect(Array.from(out)).toEqual(expected);
@@ -96,7 +120,9 @@ describe("decodeDeflate", () => {
     expect(decodeDeflate(zlibSync(data), out)).toBe(3000);
     expect(Array.from(out.subarray(0, 5))).toEqual([0, 1, 2, 3, 4]);
     // BTYPE = 11 is reserved (RFC 1951, section 3.2.3).
-    expect(() => decodeDeflate(Uint8Array.of(0x78, 0x9c, 0x07, 0x00, 0, 0, 0, 0), new Uint8Array(10))).toThrow(TiffInputError);
+    expect(() =>
+      decodeDeflate(Uint8Array.of(0x78, 0x9c, 0x07, 0x00, 0, 0, 0, 0), new Uint8Array(10)),
+    ).toThrow(TiffInputError);
     // A truncated stream.
     expect(() => decodeDeflate(zlibSync(data).subarray(0, 40), out)).toThrow(TiffInputError);
     // An empty payload decodes to nothing (the caller reports the shortfall).

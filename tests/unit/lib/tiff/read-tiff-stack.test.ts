@@ -4,7 +4,14 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fromArrayBuffer } from "geotiff";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { readManifest, sampleStack, SAMPLE_SHAPE, SAMPLE_VOXEL_UM, writeFixtureSet, type FixtureEntry } from "../../../../fixtures/fixture-set";
+import {
+  readManifest,
+  sampleStack,
+  SAMPLE_SHAPE,
+  SAMPLE_VOXEL_UM,
+  writeFixtureSet,
+  type FixtureEntry,
+} from "../../../../fixtures/fixture-set";
 import { inspectTiff, readTiffStack, type StackData } from "../../../../src/lib/tiff";
 
 function tiffcpAvailable(): boolean {
@@ -89,13 +96,22 @@ describe("readTiffStack — every flavour against the generator's truth", () => 
   });
 
   it("agrees with plain geotiff readRasters on tiffcp files (independent decoder cross-check)", async () => {
-    for (const name of ["tiffcp-u16-lzw-pred", "tiffcp-u16-zip-pred-tiles", "tiffcp-u16-packbits", "tiffcp-f32-zip-fpred"]) {
+    for (const name of [
+      "tiffcp-u16-lzw-pred",
+      "tiffcp-u16-zip-pred-tiles",
+      "tiffcp-u16-packbits",
+      "tiffcp-f32-zip-fpred",
+    ]) {
       const bytes = readFileSync(join(tempDir, `${name}.tif`));
       const { stack } = await readTiffStack(bytes);
-      const tiff = await fromArrayBuffer(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength));
+      const tiff = await fromArrayBuffer(
+        bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength),
+      );
       const plane = SAMPLE_SHAPE[1] * SAMPLE_SHAPE[2];
       for (const z of [0, 7, 15]) {
-        const raster = (await (await tiff.getImage(z)).readRasters({ interleave: true })) as unknown as ArrayLike<number>;
+        const raster = (await (
+          await tiff.getImage(z)
+        ).readRasters({ interleave: true })) as unknown as ArrayLike<number>;
         let bad = 0;
         for (let i = 0; i < plane; i++) if (raster[i] !== stack.data[z * plane + i]) bad++;
         expect(bad, `${name} z=${z}`).toBe(0);
@@ -124,18 +140,28 @@ describe("readTiffStack — channel and frame selection", () => {
     for (const name of ["own-ome-xyzct", "own-ome-xyczt", "own-ome-xyztc", "own-ome-tiffdata"]) {
       const bytes = file(name);
       const frames = name === "own-ome-tiffdata" ? 1 : 2;
-      for (let c = 0; c < 2; c++) for (let t = 0; t < frames; t++) {
-        const { stack, metadata } = await readTiffStack(bytes, { channel: c, frame: t });
-        expect(metadata.channels).toEqual({ value: 2, source: "ome-xml" });
-        expect(mismatches(stack.data, sampleStack("uint16", c, t).stack.data), `${name} c=${c} t=${t}`).toBe(0);
-      }
+      for (let c = 0; c < 2; c++)
+        for (let t = 0; t < frames; t++) {
+          const { stack, metadata } = await readTiffStack(bytes, { channel: c, frame: t });
+          expect(metadata.channels).toEqual({ value: 2, source: "ome-xml" });
+          expect(
+            mismatches(stack.data, sampleStack("uint16", c, t).stack.data),
+            `${name} c=${c} t=${t}`,
+          ).toBe(0);
+        }
     }
   });
 
   it("refuses a channel or frame the file does not have", async () => {
-    await expect(readTiffStack(file("own-imagej-c2-t2"), { channel: 2 })).rejects.toMatchObject({ code: "bad_option" });
-    await expect(readTiffStack(file("own-imagej-c2-t2"), { frame: 5 })).rejects.toMatchObject({ code: "bad_option" });
-    await expect(readTiffStack(file("own-u16-plain"), { channel: 1 })).rejects.toMatchObject({ code: "bad_option" });
+    await expect(readTiffStack(file("own-imagej-c2-t2"), { channel: 2 })).rejects.toMatchObject({
+      code: "bad_option",
+    });
+    await expect(readTiffStack(file("own-imagej-c2-t2"), { frame: 5 })).rejects.toMatchObject({
+      code: "bad_option",
+    });
+    await expect(readTiffStack(file("own-u16-plain"), { channel: 1 })).rejects.toMatchObject({
+      code: "bad_option",
+    });
   });
 
   it("does not modify its input", async () => {
