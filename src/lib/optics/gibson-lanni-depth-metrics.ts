@@ -49,6 +49,8 @@ export interface GibsonLanniDepthMetrics {
   sideLobeAsymmetry: number;
   iterations: number;
   converged: boolean;
+  /** Why the figures are (not) trustworthy: focus search state or a missing half-maximum crossing. */
+  reason: string;
 }
 
 /** Walk from x0 in steps of `step` (sign gives the direction) until f < level, then bisect. */
@@ -194,5 +196,10 @@ export function gibsonLanniDepthMetrics(
     sideLobeAsymmetry: sideLobeFar - sideLobeNear,
     iterations: focus.iterations,
     converged: focus.converged && Number.isFinite(axialFwhmUm),
+    reason: !focus.converged
+      ? `focus search: ${focus.reason}`
+      : Number.isFinite(axialFwhmUm)
+        ? "converged"
+        : "no axial half-maximum crossing within the search reach",
   };
 }
