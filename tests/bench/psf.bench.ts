@@ -24,17 +24,33 @@ function beadsFor(n: number, shape: [number, number, number], seed: number): Syn
   const out: SyntheticBead[] = [];
   let guard = 0;
   while (out.length < n && guard++ < 100000) {
-    const b = { x: 20 + rng() * (nx - 40), y: 20 + rng() * (ny - 40), z: 20 + rng() * (nz - 40), amplitude: 400 + rng() * 2000 };
+    const b = {
+      x: 20 + rng() * (nx - 40),
+      y: 20 + rng() * (ny - 40),
+      z: 20 + rng() * (nz - 40),
+      amplitude: 400 + rng() * 2000,
+    };
     if (out.every((o) => Math.hypot(o.x - b.x, o.y - b.y) > 25 || Math.abs(o.z - b.z) > 25)) out.push(b);
   }
   return out;
 }
 
 function makeStack(shape: [number, number, number], n: number): Stack {
-  return makeSyntheticStack({ shape, voxelSizeUm: VOXEL, beads: beadsFor(n, shape, 17), fwhmUm: FWHM, seed: 4 });
+  return makeSyntheticStack({
+    shape,
+    voxelSizeUm: VOXEL,
+    beads: beadsFor(n, shape, 17),
+    fwhmUm: FWHM,
+    seed: 4,
+  });
 }
 
-function timeAnalysis(stack: Stack): { wallMs: number; cpuMs: number; stages: Record<string, number>; found: number } {
+function timeAnalysis(stack: Stack): {
+  wallMs: number;
+  cpuMs: number;
+  stages: Record<string, number>;
+  found: number;
+} {
   const stages: Record<string, number> = {};
   let last = performance.now();
   let stage = "";
@@ -78,9 +94,15 @@ export async function run(): Promise<Array<{ name: string; value: number; unit: 
   timeAnalysis(makeStack([40, 128, 128], 5)); // warm-up (JIT)
   const runs = [timeAnalysis(stack), timeAnalysis(stack)];
   const best = runs.reduce((a, b) => (a.wallMs < b.wallMs ? a : b));
-  out.push({ name: "analyze 512x512x200 uint16, 60 beads: wall", value: best.wallMs / 1000, unit: "s", target: "<= 3 s" });
+  out.push({
+    name: "analyze 512x512x200 uint16, 60 beads: wall",
+    value: best.wallMs / 1000,
+    unit: "s",
+    target: "<= 3 s",
+  });
   out.push({ name: "analyze 512x512x200, 60 beads: CPU", value: best.cpuMs / 1000, unit: "s" });
-  for (const [k, v] of Object.entries(best.stages)) out.push({ name: `  stage ${k}`, value: v / 1000, unit: "s" });
+  for (const [k, v] of Object.entries(best.stages))
+    out.push({ name: `  stage ${k}`, value: v / 1000, unit: "s" });
   out.push({ name: "beads found", value: best.found, unit: "beads", target: "60" });
 
   const dir = mkdtempSync(join(tmpdir(), "psf-bench-"));
@@ -88,11 +110,33 @@ export async function run(): Promise<Array<{ name: string; value: number; unit: 
     const file = join(dir, "stack.u16");
     writeFileSync(file, Buffer.from(stack.data.buffer, stack.data.byteOffset, stack.data.byteLength));
     const res = JSON.parse(
-      execFileSync(process.execPath, ["--expose-gc", "--import", "tsx", fileURLToPath(import.meta.url), "--rss", file, ...shape.map(String)], { encoding: "utf8", maxBuffer: 1 << 20 }),
+      execFileSync(
+        process.execPath,
+        [
+          "--expose-gc",
+          "--import",
+          "tsx",
+          fileURLToPath(import.meta.url),
+          "--rss",
+          file,
+          ...shape.map(String),
+        ],
+        { encoding: "utf8", maxBuffer: 1 << 20 },
+      ),
     ) as { baseline: number; before: number; peak: number };
     const beyond = Math.max(0, res.peak - Math.max(res.baseline, 0));
-    out.push({ name: "peak RSS beyond baseline (stack loaded)", value: beyond / 1e6, unit: "MB", target: `<= ${((3 * stackBytes) / 1e6).toFixed(0)} MB (3x stack)` });
-    out.push({ name: "peak RSS beyond baseline / stack bytes", value: beyond / stackBytes, unit: "x", target: "<= 3" });
+    out.push({
+      name: "peak RSS beyond baseline (stack loaded)",
+      value: beyond / 1e6,
+      unit: "MB",
+      target: `<= ${((3 * stackBytes) / 1e6).toFixed(0)} MB (3x stack)`,
+    });
+    out.push({
+      name: "peak RSS beyond baseline / stack bytes",
+      value: beyond / stackBytes,
+      unit: "x",
+      target: "<= 3",
+    });
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
@@ -113,6 +157,9 @@ if (process.argv[2] === "--rss") {
   rssChild(process.argv[3], Number(process.argv[4]), Number(process.argv[5]), Number(process.argv[6]));
 } else if (import.meta.url === `file://${process.argv[1]}` || process.argv[1]?.endsWith("psf.bench.ts")) {
   run().then((rows) => {
-    for (const r of rows) console.log(`${r.name.padEnd(48)} ${r.value.toFixed(3).padStart(10)} ${r.unit}${r.target ? `   (target ${r.target})` : ""}`);
+    for (const r of rows)
+      console.log(
+        `${r.name.padEnd(48)} ${r.value.toFixed(3).padStart(10)} ${r.unit}${r.target ? `   (target ${r.target})` : ""}`,
+      );
   });
 }

@@ -52,13 +52,20 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
   const det = detectBeads(stack, {
     background: bg.median,
     noiseSigma: bg.noiseSigma,
-    smoothingSigmaPx: { x: smooth(o.expectedFwhmUm.lateral, vs.x), y: smooth(o.expectedFwhmUm.lateral, vs.y), z: smooth(o.expectedFwhmUm.axial, vs.z) },
+    smoothingSigmaPx: {
+      x: smooth(o.expectedFwhmUm.lateral, vs.x),
+      y: smooth(o.expectedFwhmUm.lateral, vs.y),
+      z: smooth(o.expectedFwhmUm.axial, vs.z),
+    },
     thresholdK: o.thresholdK,
     minSeparationUm: o.minSeparationUm,
     secondaryFraction: o.secondaryFraction,
     // Side lobes of a depth-aberrated PSF reach several matched axial FWHM from the peak (METHODS §8), and the
     // defocus rings in those lobe planes ≈ 4 lateral FWHM off axis (seen on GL renders, oil → water 10 µm), hence ≥ 6.
-    secondaryZoneUm: { lateral: Math.max(o.exclusionFactor.lateral, 6) * o.expectedFwhmUm.lateral, axial: Math.max(o.exclusionFactor.axial, 6) * o.expectedFwhmUm.axial },
+    secondaryZoneUm: {
+      lateral: Math.max(o.exclusionFactor.lateral, 6) * o.expectedFwhmUm.lateral,
+      axial: Math.max(o.exclusionFactor.axial, 6) * o.expectedFwhmUm.axial,
+    },
     onProgress: progress ? (f) => progress("detecting", f) : undefined,
   });
   progress?.("fitting", 0);
@@ -114,11 +121,14 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
       }
     }
   }
-  const clean = measurements.map((m, i) => (reasons[i].length === 0 && m.integrated !== null ? m.integrated : Number.NaN)).filter(Number.isFinite);
+  const clean = measurements
+    .map((m, i) => (reasons[i].length === 0 && m.integrated !== null ? m.integrated : Number.NaN))
+    .filter(Number.isFinite);
   const integratedMedian = clean.length >= 3 ? median(clean) : Number.NaN;
   if (Number.isFinite(integratedMedian) && integratedMedian > 0)
     measurements.forEach((m, i) => {
-      if (m.integrated !== null && m.integrated > o.aggregateFactor * integratedMedian) reasons[i].push("aggregate");
+      if (m.integrated !== null && m.integrated > o.aggregateFactor * integratedMedian)
+        reasons[i].push("aggregate");
     });
 
   // Coverslip reference and depth.
@@ -154,12 +164,20 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
   const beads = applyInclusion(raw, o.excludedBeadIds, o.includedOverrides);
   progress?.("aggregating", 0.3);
   const summary = summarizeBeads(beads, { beadDiameterNm: o.beadDiameterNm, beadLabel: o.beadLabel });
-  const profile = depthProfile(beads, { minBeadsPerBin: o.minBeadsPerBin, maxDepthBins: o.maxDepthBins, beadDiameterNm: o.beadDiameterNm, beadLabel: o.beadLabel });
+  const profile = depthProfile(beads, {
+    minBeadsPerBin: o.minBeadsPerBin,
+    maxDepthBins: o.maxDepthBins,
+    beadDiameterNm: o.beadDiameterNm,
+    beadLabel: o.beadLabel,
+  });
   const trend = depthTrend(beads);
   progress?.("aggregating", 0.5);
   const avg = o.averagePsf
     ? averagePsf(stack, beads, {
-        halfSizeUm: { lateral: 3 * o.expectedFwhmUm.lateral, axial: 4 * Math.max(o.expectedFwhmUm.axial, summary.fwhmZ.medianUm ?? 0) },
+        halfSizeUm: {
+          lateral: 3 * o.expectedFwhmUm.lateral,
+          axial: 4 * Math.max(o.expectedFwhmUm.axial, summary.fwhmZ.medianUm ?? 0),
+        },
         farIsIncreasingZ: into,
         maxIterations: o.maxIterations1d,
       })
@@ -181,7 +199,11 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
     field,
     provenance: {
       engineVersion: ENGINE_VERSION,
-      parameters: { ...params, nominalToActualDepth: o.nominalToActualDepth ? "injected" : "identity", integratedMedian: Number.isFinite(integratedMedian) ? integratedMedian : null },
+      parameters: {
+        ...params,
+        nominalToActualDepth: o.nominalToActualDepth ? "injected" : "identity",
+        integratedMedian: Number.isFinite(integratedMedian) ? integratedMedian : null,
+      },
       stack: {
         shape: [nz, ny, nx],
         dtype: stack.dtype,

@@ -34,7 +34,11 @@ export interface AveragePsfOptions {
  * @example
  * averagePsf(stack, beads, { halfSizeUm: { lateral: 0.75, axial: 2.8 } })?.fwhmXUm;
  */
-export function averagePsf(stack: Stack, beads: readonly BeadResult[], options: AveragePsfOptions): AveragedPsf | null {
+export function averagePsf(
+  stack: Stack,
+  beads: readonly BeadResult[],
+  options: AveragePsfOptions,
+): AveragedPsf | null {
   const { halfSizeUm, farIsIncreasingZ = true, maxIterations = 30 } = options;
   const vs = stack.voxelSizeUm!;
   const [nz, ny, nx] = stack.shape;
@@ -47,7 +51,9 @@ export function averagePsf(stack: Stack, beads: readonly BeadResult[], options: 
   const acc = new Float64Array(sx * sy * sz);
   const cnt = new Float64Array(sx * sy * sz);
   const d = stack.data;
-  const use = beads.filter((b) => b.included && b.amplitude !== null && b.amplitude > 0 && b.background !== null);
+  const use = beads.filter(
+    (b) => b.included && b.amplitude !== null && b.amplitude > 0 && b.background !== null,
+  );
   if (use.length === 0) return null;
   for (const b of use) {
     const amp = b.amplitude!;

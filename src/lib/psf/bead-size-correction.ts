@@ -26,13 +26,23 @@ export interface BeadSizeCorrected {
  * @example
  * correctForBeadSize(0.2223, 175).correctedUm; // ≈ 0.2023
  */
-export function correctForBeadSize(measuredFwhmUm: number, beadDiameterNm: number, label: "solid" | "shell" = "solid"): BeadSizeCorrected {
+export function correctForBeadSize(
+  measuredFwhmUm: number,
+  beadDiameterNm: number,
+  label: "solid" | "shell" = "solid",
+): BeadSizeCorrected {
   if (!(beadDiameterNm > 0) || !Number.isFinite(beadDiameterNm))
-    throw new RangeError(`correctForBeadSize: beadDiameterNm must be a positive number; got ${beadDiameterNm}`);
+    throw new RangeError(
+      `correctForBeadSize: beadDiameterNm must be a positive number; got ${beadDiameterNm}`,
+    );
   const beadFwhmUm = (BEAD_FWHM_PER_DIAMETER[label] * beadDiameterNm) / 1000;
   // The applicability limit is stated on the solid-sphere term 0.5265·d for either label (METHODS §7, issue 4).
   const limitTermUm = (BEAD_FWHM_PER_DIAMETER.solid * beadDiameterNm) / 1000;
   if (!(measuredFwhmUm > 0) || !(limitTermUm < 0.5 * measuredFwhmUm) || !(beadFwhmUm < measuredFwhmUm))
     return { correctedUm: null, beadFwhmUm, applied: false };
-  return { correctedUm: Math.sqrt(measuredFwhmUm * measuredFwhmUm - beadFwhmUm * beadFwhmUm), beadFwhmUm, applied: true };
+  return {
+    correctedUm: Math.sqrt(measuredFwhmUm * measuredFwhmUm - beadFwhmUm * beadFwhmUm),
+    beadFwhmUm,
+    applied: true,
+  };
 }

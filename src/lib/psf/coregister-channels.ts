@@ -64,11 +64,18 @@ export interface Coregistration {
  * @example
  * coregisterChannels(green.beads, red.beads, { toleranceUm: 0.5, resolutionUm: { lateral: 0.25, axial: 0.7 } }).medianAxialUm;
  */
-export function coregisterChannels(reference: readonly BeadResult[], test: readonly BeadResult[], options: CoregisterChannelsOptions): Coregistration {
+export function coregisterChannels(
+  reference: readonly BeadResult[],
+  test: readonly BeadResult[],
+  options: CoregisterChannelsOptions,
+): Coregistration {
   const { toleranceUm, resolutionUm, includedOnly = true } = options;
-  if (!(toleranceUm > 0)) throw new RangeError(`coregisterChannels: toleranceUm must be > 0; got ${toleranceUm}`);
+  if (!(toleranceUm > 0))
+    throw new RangeError(`coregisterChannels: toleranceUm must be > 0; got ${toleranceUm}`);
   if (!(resolutionUm?.lateral > 0) || !(resolutionUm?.axial > 0))
-    throw new RangeError(`coregisterChannels: resolutionUm.lateral and .axial must be > 0; got ${JSON.stringify(resolutionUm)}`);
+    throw new RangeError(
+      `coregisterChannels: resolutionUm.lateral and .axial must be > 0; got ${JSON.stringify(resolutionUm)}`,
+    );
   const a = reference.filter((b) => !includedOnly || b.included);
   const b = test.filter((x) => !includedOnly || x.included);
   const dist = (p: BeadResult, q: BeadResult) => Math.hypot(p.xUm - q.xUm, p.yUm - q.yUm, p.zUm - q.zUm);
@@ -94,7 +101,16 @@ export function coregisterChannels(reference: readonly BeadResult[], test: reado
     const dx = q.xUm - p.xUm;
     const dy = q.yUm - p.yUm;
     const dz = q.zUm - p.zUm;
-    pairs.push({ referenceId: p.id, testId: q.id, dxUm: dx, dyUm: dy, dzUm: dz, lateralUm: Math.hypot(dx, dy), axialUm: Math.abs(dz), depthUm: p.depthUm });
+    pairs.push({
+      referenceId: p.id,
+      testId: q.id,
+      dxUm: dx,
+      dyUm: dy,
+      dzUm: dz,
+      lateralUm: Math.hypot(dx, dy),
+      axialUm: Math.abs(dz),
+      depthUm: p.depthUm,
+    });
   }
   const m = (f: (x: CoregistrationPair) => number) => {
     const v = median(pairs.map(f));
@@ -114,8 +130,17 @@ export function coregisterChannels(reference: readonly BeadResult[], test: reado
     medianDzUm: m((x) => x.dzUm),
     lateralRatio: ml !== null ? ml / resolutionUm.lateral : null,
     axialRatio: ma !== null ? ma / resolutionUm.axial : null,
-    lateralVsDepth: theilSen(depth, pairs.map((x) => x.lateralUm)),
-    axialVsDepth: theilSen(depth, pairs.map((x) => x.axialUm)),
-    dzVsDepth: theilSen(depth, pairs.map((x) => x.dzUm)),
+    lateralVsDepth: theilSen(
+      depth,
+      pairs.map((x) => x.lateralUm),
+    ),
+    axialVsDepth: theilSen(
+      depth,
+      pairs.map((x) => x.axialUm),
+    ),
+    dzVsDepth: theilSen(
+      depth,
+      pairs.map((x) => x.dzUm),
+    ),
   };
 }

@@ -28,9 +28,14 @@ export interface DepthProfileOptions {
  * @example
  * depthProfile(beads, { minBeadsPerBin: 5 }).length;
  */
-export function depthProfile(beads: readonly BeadResult[], options: DepthProfileOptions = {}): DepthProfileRow[] {
+export function depthProfile(
+  beads: readonly BeadResult[],
+  options: DepthProfileOptions = {},
+): DepthProfileRow[] {
   const { minBeadsPerBin = 5, maxDepthBins = 10, beadDiameterNm, beadLabel = "solid" } = options;
-  const used = beads.filter((b) => b.included && Number.isFinite(b.depthUm)).sort((a, b) => a.depthUm - b.depthUm);
+  const used = beads
+    .filter((b) => b.included && Number.isFinite(b.depthUm))
+    .sort((a, b) => a.depthUm - b.depthUm);
   const n = used.length;
   if (n === 0) return [];
   const k = Math.min(maxDepthBins, Math.max(1, Math.floor(n / Math.max(1, minBeadsPerBin))));
@@ -48,7 +53,8 @@ export function depthProfile(beads: readonly BeadResult[], options: DepthProfile
         medianUm: m,
         q1Um: quantileSorted(s, 0.25),
         q3Um: quantileSorted(s, 0.75),
-        medianCorrectedUm: beadDiameterNm !== undefined ? correctForBeadSize(m, beadDiameterNm, beadLabel).correctedUm : null,
+        medianCorrectedUm:
+          beadDiameterNm !== undefined ? correctForBeadSize(m, beadDiameterNm, beadLabel).correctedUm : null,
       };
     };
     const asym = median(bin.map((x) => x.axialAsymmetry ?? Number.NaN));
@@ -82,6 +88,15 @@ export function depthTrend(beads: readonly BeadResult[]): DepthTrend {
   const used = beads.filter((b) => b.included);
   const x = used.map((b) => b.depthUm);
   const t = (key: "fwhmXUm" | "fwhmYUm" | "fwhmZUm" | "fwhmZDirectUm" | "axialAsymmetry") =>
-    theilSen(x, used.map((b) => b[key] ?? Number.NaN));
-  return { fwhmX: t("fwhmXUm"), fwhmY: t("fwhmYUm"), fwhmZ: t("fwhmZUm"), fwhmZDirect: t("fwhmZDirectUm"), axialAsymmetry: t("axialAsymmetry") };
+    theilSen(
+      x,
+      used.map((b) => b[key] ?? Number.NaN),
+    );
+  return {
+    fwhmX: t("fwhmXUm"),
+    fwhmY: t("fwhmYUm"),
+    fwhmZ: t("fwhmZUm"),
+    fwhmZDirect: t("fwhmZDirectUm"),
+    axialAsymmetry: t("axialAsymmetry"),
+  };
 }

@@ -71,7 +71,17 @@ export interface DetectBeadsResult {
  * detectBeads(stack, { background: 100, noiseSigma: 10, smoothingSigmaPx: { x: 1, y: 1, z: 1 }, minSeparationUm: { lateral: 0.3, axial: 3 } });
  */
 export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBeadsResult {
-  const { background, noiseSigma, smoothingSigmaPx, thresholdK = 6, minSeparationUm, maxCandidates = 200_000, onProgress, secondaryFraction = 0.25, secondaryZoneUm } = options;
+  const {
+    background,
+    noiseSigma,
+    smoothingSigmaPx,
+    thresholdK = 6,
+    minSeparationUm,
+    maxCandidates = 200_000,
+    onProgress,
+    secondaryFraction = 0.25,
+    secondaryZoneUm,
+  } = options;
   if (!stack.voxelSizeUm) throw new TypeError("detectBeads: stack.voxelSizeUm is required");
   const { x: vx, y: vy, z: vz } = stack.voxelSizeUm;
   const [nz, ny, nx] = stack.shape;
@@ -114,7 +124,8 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
       if (kl === 5) {
         for (let x = 2; x < nx - 2; x++) {
           const o = ro + x - 2;
-          tmp[to + x] = k0 * data[o] + k1 * data[o + 1] + k2 * data[o + 2] + k3 * data[o + 3] + k4 * data[o + 4];
+          tmp[to + x] =
+            k0 * data[o] + k1 * data[o + 1] + k2 * data[o + 2] + k3 * data[o + 3] + k4 * data[o + 4];
         }
       } else if (kl === 3) {
         for (let x = 1; x < nx - 1; x++) {
@@ -200,7 +211,9 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
 
   // Merge maxima closer than the minimum separation, brightest first.
   const nc = cand.length / 4;
-  const order = Array.from({ length: nc }, (_, i) => i).sort((a, b) => cand[4 * b + 3] - cand[4 * a + 3] || a - b);
+  const order = Array.from({ length: nc }, (_, i) => i).sort(
+    (a, b) => cand[4 * b + 3] - cand[4 * a + 3] || a - b,
+  );
   const kept: DetectedPeak[] = [];
   const lat2 = minSeparationUm.lateral * minSeparationUm.lateral;
   for (const i of order) {
@@ -218,7 +231,10 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
         break;
       }
       if (secondaryZoneUm && h < secondaryFraction * k.height) {
-        if (dx * dx + dy * dy < secondaryZoneUm.lateral * secondaryZoneUm.lateral && Math.abs(dz) < secondaryZoneUm.axial) {
+        if (
+          dx * dx + dy * dy < secondaryZoneUm.lateral * secondaryZoneUm.lateral &&
+          Math.abs(dz) < secondaryZoneUm.axial
+        ) {
           clash = true;
           break;
         }
@@ -226,7 +242,14 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
     }
     if (!clash) kept.push({ x, y, z, height: cand[4 * i + 3] });
   }
-  return { peaks: kept, threshold, smoothedNoiseSigma, candidatesAboveThreshold: nc, merged: nc - kept.length, truncated };
+  return {
+    peaks: kept,
+    threshold,
+    smoothedNoiseSigma,
+    candidatesAboveThreshold: nc,
+    merged: nc - kept.length,
+    truncated,
+  };
 }
 
 /**
@@ -242,11 +265,19 @@ function lightKernel(sigma: number): Float32Array {
 }
 
 /** out[o + i] = Σ_k w_k·src[rows[k] + i], i < n — one pass, unrolled for 3 and 5 taps. */
-function combineRows(out: Float32Array, o: number, src: Float32Array, rows: number[], w: Float32Array, n: number): void {
+function combineRows(
+  out: Float32Array,
+  o: number,
+  src: Float32Array,
+  rows: number[],
+  w: Float32Array,
+  n: number,
+): void {
   if (w.length === 5) {
     const [a, b, c, d, e] = rows;
     const [w0, w1, w2, w3, w4] = w;
-    for (let i = 0; i < n; i++) out[o + i] = w0 * src[a + i] + w1 * src[b + i] + w2 * src[c + i] + w3 * src[d + i] + w4 * src[e + i];
+    for (let i = 0; i < n; i++)
+      out[o + i] = w0 * src[a + i] + w1 * src[b + i] + w2 * src[c + i] + w3 * src[d + i] + w4 * src[e + i];
   } else if (w.length === 3) {
     const [a, b, c] = rows;
     const [w0, w1, w2] = w;

@@ -35,7 +35,10 @@ export interface EstimateBackgroundOptions {
  * @example
  * estimateBackground(stack).noiseSigma; // ≈ √(background + readNoise²) for Poisson + read noise
  */
-export function estimateBackground(stack: Stack, options: EstimateBackgroundOptions = {}): BackgroundEstimate {
+export function estimateBackground(
+  stack: Stack,
+  options: EstimateBackgroundOptions = {},
+): BackgroundEstimate {
   const { maxSamples = 2_000_000 } = options;
   const data = stack.data;
   const n = data.length;
@@ -51,7 +54,13 @@ export function estimateBackground(stack: Stack, options: EstimateBackgroundOpti
     for (let v = 0; v < bins; v++) if (hist[v] > 0) dev[Math.abs(v - Math.round(med))] += hist[v];
     const mad = histogramMedian(dev, n);
     const raw = 1.482602218505602 * mad;
-    return { median: med, noiseSigma: Math.max(raw, 1 / Math.sqrt(12)), madSigmaRaw: raw, method: "histogram", sampleSize: n };
+    return {
+      median: med,
+      noiseSigma: Math.max(raw, 1 / Math.sqrt(12)),
+      madSigmaRaw: raw,
+      method: "histogram",
+      sampleSize: n,
+    };
   }
   const stride = Math.max(1, Math.floor(n / maxSamples));
   const sample = new Float64Array(Math.ceil(n / stride));
@@ -61,7 +70,13 @@ export function estimateBackground(stack: Stack, options: EstimateBackgroundOpti
   const med = median(s);
   const raw = madSigma(s);
   const floor = integer ? 1 / Math.sqrt(12) : 1e-9 * Math.max(1, Math.abs(med));
-  return { median: med, noiseSigma: Math.max(raw, floor), madSigmaRaw: raw, method: "subsample", sampleSize: k };
+  return {
+    median: med,
+    noiseSigma: Math.max(raw, floor),
+    madSigmaRaw: raw,
+    method: "subsample",
+    sampleSize: k,
+  };
 }
 
 /** Median of integer-valued data given as a histogram (bin v holds the count of value v). */

@@ -34,7 +34,10 @@ export interface FieldDependenceOptions {
  * @example
  * fieldDependence(beads, { fieldWidthUm: 33, fieldHeightUm: 33, focusLayerThicknessUm: 1.4 }).plane.tiltUmPerUm;
  */
-export function fieldDependence(beads: readonly BeadResult[], options: FieldDependenceOptions): FieldDependence {
+export function fieldDependence(
+  beads: readonly BeadResult[],
+  options: FieldDependenceOptions,
+): FieldDependence {
   const { fieldWidthUm, fieldHeightUm, centralFraction = 0.5, focusLayerThicknessUm } = options;
   const cxu = fieldWidthUm / 2;
   const cyu = fieldHeightUm / 2;
@@ -42,7 +45,9 @@ export function fieldDependence(beads: readonly BeadResult[], options: FieldDepe
   const used = beads.filter((b) => b.included);
   const r = used.map((b) => Math.hypot(b.xUm - cxu, b.yUm - cyu));
   const central = used.filter((_, i) => r[i] <= centralFraction * R);
-  const layer = used.filter((b) => Number.isFinite(b.apparentDepthUm) && b.apparentDepthUm <= focusLayerThicknessUm);
+  const layer = used.filter(
+    (b) => Number.isFinite(b.apparentDepthUm) && b.apparentDepthUm <= focusLayerThicknessUm,
+  );
   const px = layer.map((b) => b.xUm - cxu);
   const py = layer.map((b) => b.yUm - cyu);
   const pz = layer.map((b) => b.zUm);
@@ -53,10 +58,22 @@ export function fieldDependence(beads: readonly BeadResult[], options: FieldDepe
     centralFraction,
     central: regionStats(central),
     full: regionStats(used),
-    fwhmXVsRadius: theilSen(r, used.map((b) => b.fwhmXUm ?? Number.NaN)),
-    fwhmYVsRadius: theilSen(r, used.map((b) => b.fwhmYUm ?? Number.NaN)),
-    fwhmZVsRadius: theilSen(r, used.map((b) => b.fwhmZUm ?? Number.NaN)),
-    lateralAsymmetryVsRadius: theilSen(r, used.map((b) => b.lateralAsymmetry ?? Number.NaN)),
+    fwhmXVsRadius: theilSen(
+      r,
+      used.map((b) => b.fwhmXUm ?? Number.NaN),
+    ),
+    fwhmYVsRadius: theilSen(
+      r,
+      used.map((b) => b.fwhmYUm ?? Number.NaN),
+    ),
+    fwhmZVsRadius: theilSen(
+      r,
+      used.map((b) => b.fwhmZUm ?? Number.NaN),
+    ),
+    lateralAsymmetryVsRadius: theilSen(
+      r,
+      used.map((b) => b.lateralAsymmetry ?? Number.NaN),
+    ),
     focusLayerThicknessUm,
     plane: fitSurface(px, py, pz, false, cxu, cyu),
     quadratic: fitSurface(px, py, pz, true, cxu, cyu),
@@ -78,10 +95,24 @@ function regionStats(b: readonly BeadResult[]): RegionStatistics {
 }
 
 /** Least-squares plane or quadratic z(x, y) through the points, with planarity over the field rectangle. */
-export function fitSurface(x: number[], y: number[], z: number[], quadratic: boolean, halfW: number, halfH: number): FocusSurface {
+export function fitSurface(
+  x: number[],
+  y: number[],
+  z: number[],
+  quadratic: boolean,
+  halfW: number,
+  halfH: number,
+): FocusSurface {
   const n = x.length;
   const p = quadratic ? 6 : 3;
-  const empty: FocusSurface = { n, coefficients: null, tiltUmPerUm: null, planarityPeakToValleyUm: null, planarityRmsUm: null, residualRmsUm: null };
+  const empty: FocusSurface = {
+    n,
+    coefficients: null,
+    tiltUmPerUm: null,
+    planarityPeakToValleyUm: null,
+    planarityRmsUm: null,
+    residualRmsUm: null,
+  };
   if (n < p + (quadratic ? 1 : 0)) return empty;
   const basis = (u: number, v: number) => (quadratic ? [1, u, v, u * u, u * v, v * v] : [1, u, v]);
   const rows = x.map((u, i) => basis(u, y[i]));

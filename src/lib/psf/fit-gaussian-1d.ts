@@ -75,7 +75,8 @@ export function fitGaussian1d(profile: ArrayLike<number>, options: FitGaussian1d
     positions = idx;
   }
   const { maxIterations = 30 } = options;
-  if (positions.length !== n) throw new RangeError(`fitGaussian1d: positions length ${positions.length} ≠ profile length ${n}`);
+  if (positions.length !== n)
+    throw new RangeError(`fitGaussian1d: positions length ${positions.length} ≠ profile length ${n}`);
   const step = n > 1 ? Math.abs(positions[n - 1] - positions[0]) / (n - 1) : 1;
   const span = n > 1 ? Math.abs(positions[n - 1] - positions[0]) : 1;
   const sigmaMin = options.sigmaMin ?? 0.25 * step;
@@ -143,8 +144,12 @@ export function seedGaussian1d(
   while (a > 0 && profile[a - 1] > half) a--;
   let b = iMax;
   while (b < n - 1 && profile[b + 1] > half) b++;
-  const xl = a > 0 ? interpCross(positions[a - 1], profile[a - 1], positions[a], profile[a], half) : positions[0];
-  const xr = b < n - 1 ? interpCross(positions[b], profile[b], positions[b + 1], profile[b + 1], half) : positions[n - 1];
+  const xl =
+    a > 0 ? interpCross(positions[a - 1], profile[a - 1], positions[a], profile[a], half) : positions[0];
+  const xr =
+    b < n - 1
+      ? interpCross(positions[b], profile[b], positions[b + 1], profile[b + 1], half)
+      : positions[n - 1];
   const step = n > 1 ? Math.abs(positions[n - 1] - positions[0]) / (n - 1) : 1;
   const sigma = Math.max(Math.abs(xr - xl), step) / 2.3548200450309493;
   return { background, amplitude, centre, sigma };

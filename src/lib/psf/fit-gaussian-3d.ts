@@ -90,7 +90,8 @@ export function fitGaussian3d(win: Window3d, options: FitGaussian3dOptions = {})
     for (let y = 0; y < ny; y++)
       for (let x = 0; x < nx; x++, i++) {
         if (ellipsoidal) {
-          const e = ((x - hx) / (hx + 0.5)) ** 2 + ((y - hy) / (hy + 0.5)) ** 2 + ((z - hz) / (hz + 0.5)) ** 2;
+          const e =
+            ((x - hx) / (hx + 0.5)) ** 2 + ((y - hy) / (hy + 0.5)) ** 2 + ((z - hz) / (hz + 0.5)) ** 2;
           if (e > 1) continue;
         }
         cx[n] = x * vx;
@@ -137,7 +138,11 @@ export function fitGaussian3d(win: Window3d, options: FitGaussian3dOptions = {})
         u = c * dx + sn * dy;
         v = -sn * dx + c * dy;
       }
-      return p[0] + p[1] * Math.exp(-(u * u) / (2 * p[5] * p[5]) - (v * v) / (2 * p[6] * p[6]) - (dz * dz) / (2 * p[7] * p[7]));
+      return (
+        p[0] +
+        p[1] *
+          Math.exp(-(u * u) / (2 * p[5] * p[5]) - (v * v) / (2 * p[6] * p[6]) - (dz * dz) / (2 * p[7] * p[7]))
+      );
     },
     gradient(p, k, out) {
       const dx = cx[k] - p[2];
@@ -167,7 +172,12 @@ export function fitGaussian3d(win: Window3d, options: FitGaussian3dOptions = {})
       if (rotation) out[8] = ae * u * v * (1 / sy2 - 1 / sx2);
     },
   };
-  const fit = fitModel(values.subarray(0, n), model, { initialValues: init, minValues: minV, maxValues: maxV, maxIterations });
+  const fit = fitModel(values.subarray(0, n), model, {
+    initialValues: init,
+    minValues: minV,
+    maxValues: maxV,
+    maxIterations,
+  });
   const p = fit.params;
   const at = (k: number) => p[k] <= minV[k] * 1.01 || p[k] >= maxV[k] * 0.99;
   return {

@@ -59,8 +59,19 @@ export interface FitModelResult {
  * @example
  * fitModel(y, gaussian1dModel(t), { initialValues: [100, 1000, 7, 2] });
  */
-export function fitModel(y: ArrayLike<number>, model: IndexedModel, options: FitModelOptions): FitModelResult {
-  const { initialValues, minValues, maxValues, maxIterations = 30, damping = 1e-2, stepTolerance = 0.05 } = options;
+export function fitModel(
+  y: ArrayLike<number>,
+  model: IndexedModel,
+  options: FitModelOptions,
+): FitModelResult {
+  const {
+    initialValues,
+    minValues,
+    maxValues,
+    maxIterations = 30,
+    damping = 1e-2,
+    stepTolerance = 0.05,
+  } = options;
   const n = y.length;
   const p = model.nParams;
   const nanResult = (reason: FitStopReason, params: number[]): FitModelResult => ({
@@ -82,27 +93,24 @@ export function fitModel(y: ArrayLike<number>, model: IndexedModel, options: Fit
   const gradView = grad as unknown as number[];
   let lm;
   try {
-    lm = levenbergMarquardt(
-      { x: xs, y },
-      (params: number[]) => (i: number) => model.value(params, i),
-      {
-        initialValues,
-        minValues,
-        maxValues,
-        maxIterations,
-        damping,
-        errorTolerance: 1e-10,
-        jacobianFunction: (params: number[]) => (i: number) => {
-          model.gradient(params, i, grad);
-          return gradView;
-        },
+    lm = levenbergMarquardt({ x: xs, y }, (params: number[]) => (i: number) => model.value(params, i), {
+      initialValues,
+      minValues,
+      maxValues,
+      maxIterations,
+      damping,
+      errorTolerance: 1e-10,
+      jacobianFunction: (params: number[]) => (i: number) => {
+        model.gradient(params, i, grad);
+        return gradView;
       },
-    );
+    });
   } catch {
     return nanResult("non_finite", initialValues.slice());
   }
   const params = lm.parameterValues;
-  if (!params.every(Number.isFinite)) return { ...nanResult("non_finite", params), iterations: lm.iterations };
+  if (!params.every(Number.isFinite))
+    return { ...nanResult("non_finite", params), iterations: lm.iterations };
 
   // Jacobian at the optimum → JᵀJ, Jᵀr, SSE, SST.
   const jtj = new Float64Array(p * p);
@@ -129,7 +137,7 @@ export function fitModel(y: ArrayLike<number>, model: IndexedModel, options: Fit
     for (let b = 0; b < p; b++) row.push(a <= b ? jtj[a * p + b] : jtj[b * p + a]);
     rows.push(row);
   }
-  let inv: number[][] | null = null;
+  let inv: number[][] | null;
   try {
     const m = inverse(new Matrix(rows));
     inv = m.to2DArray();
@@ -159,7 +167,8 @@ export function fitModel(y: ArrayLike<number>, model: IndexedModel, options: Fit
     for (let b = 0; b < p; b++) delta += inv[a][b] * jtr[b];
     // A parameter pinned at a bound cannot take the step; judge the others.
     const atBound =
-      (minValues && params[a] <= minValues[a] && delta < 0) || (maxValues && params[a] >= maxValues[a] && delta > 0);
+      (minValues && params[a] <= minValues[a] && delta < 0) ||
+      (maxValues && params[a] >= maxValues[a] && delta > 0);
     if (atBound) continue;
     const scale = Math.max(stepTolerance * standardErrors[a], 1e-7 * Math.abs(params[a]), 1e-12);
     if (!(Math.abs(delta) <= scale)) converged = false;

@@ -12,7 +12,8 @@
  * gaussianKernel(1).length; // 7
  */
 export function gaussianKernel(sigma: number, truncate = 2.5): Float32Array {
-  if (!(sigma >= 0) || !Number.isFinite(sigma)) throw new RangeError(`gaussianKernel: sigma must be ≥ 0; got ${sigma}`);
+  if (!(sigma >= 0) || !Number.isFinite(sigma))
+    throw new RangeError(`gaussianKernel: sigma must be ≥ 0; got ${sigma}`);
   if (sigma === 0) return Float32Array.of(1);
   const r = Math.max(1, Math.ceil(truncate * sigma));
   const w = new Float32Array(2 * r + 1);

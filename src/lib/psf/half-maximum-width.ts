@@ -26,7 +26,11 @@ export interface HalfMaximumWidth {
  * @example
  * halfMaximumWidth([0, 1, 3, 1, 0], 0).width; // 1.5 (crossings at 1.25 and 2.75)
  */
-export function halfMaximumWidth(profile: ArrayLike<number>, background: number, startIndex?: number): HalfMaximumWidth {
+export function halfMaximumWidth(
+  profile: ArrayLike<number>,
+  background: number,
+  startIndex?: number,
+): HalfMaximumWidth {
   const n = profile.length;
   let iMax = 0;
   if (startIndex === undefined) {
@@ -76,5 +80,11 @@ export function halfMaximumWidth(profile: ArrayLike<number>, background: number,
       break;
     }
   }
-  return { width: left !== null && right !== null ? right - left : null, left, right, peakPosition, peakHeight };
+  return {
+    width: left !== null && right !== null ? right - left : null,
+    left,
+    right,
+    peakPosition,
+    peakHeight,
+  };
 }

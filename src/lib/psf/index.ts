@@ -21,15 +21,40 @@ export type {
   WidthStatistics,
 } from "./analysis-types";
 export { analyzeStack } from "./analyze-stack";
-export { recomputeSummary, applyInclusion, type RecomputeSummaryOptions, type RecomputedSummary } from "./recompute-summary";
+export {
+  recomputeSummary,
+  applyInclusion,
+  type RecomputeSummaryOptions,
+  type RecomputedSummary,
+} from "./recompute-summary";
 export { resolveAnalyzeOptions, type ResolvedAnalyzeOptions } from "./resolve-analyze-options";
-export { estimateBackground, type BackgroundEstimate, type EstimateBackgroundOptions } from "./estimate-background";
-export { detectBeads, type DetectBeadsOptions, type DetectBeadsResult, type DetectedPeak } from "./detect-beads";
+export {
+  estimateBackground,
+  type BackgroundEstimate,
+  type EstimateBackgroundOptions,
+} from "./estimate-background";
+export {
+  detectBeads,
+  type DetectBeadsOptions,
+  type DetectBeadsResult,
+  type DetectedPeak,
+} from "./detect-beads";
 export { gaussianKernel } from "./gaussian-kernel";
 export { measureBead, type BeadMeasurement, type MeasureBeadOptions } from "./measure-bead";
 export { fitModel, type FitModelOptions, type FitModelResult, type IndexedModel } from "./fit-model";
-export { fitGaussian1d, seedGaussian1d, type FitGaussian1dOptions, type Gaussian1dFit } from "./fit-gaussian-1d";
-export { fitGaussian3d, type FitGaussian3dOptions, type Gaussian3dFit, type Gaussian3dParams, type Window3d } from "./fit-gaussian-3d";
+export {
+  fitGaussian1d,
+  seedGaussian1d,
+  type FitGaussian1dOptions,
+  type Gaussian1dFit,
+} from "./fit-gaussian-1d";
+export {
+  fitGaussian3d,
+  type FitGaussian3dOptions,
+  type Gaussian3dFit,
+  type Gaussian3dParams,
+  type Window3d,
+} from "./fit-gaussian-3d";
 export { halfMaximumWidth, type HalfMaximumWidth } from "./half-maximum-width";
 export { axialAsymmetry, type AxialAsymmetry } from "./axial-asymmetry";
 export { correctForBeadSize, BEAD_FWHM_PER_DIAMETER, type BeadSizeCorrected } from "./bead-size-correction";
@@ -39,4 +64,9 @@ export { theilSen, normalQuantile } from "./theil-sen";
 export { quantile, quantileSorted, median, madSigma, sortedFinite } from "./quantile";
 export { averagePsf, type AveragePsfOptions } from "./average-psf";
 export { fieldDependence, fitSurface, type FieldDependenceOptions } from "./field-dependence";
-export { coregisterChannels, type CoregisterChannelsOptions, type Coregistration, type CoregistrationPair } from "./coregister-channels";
+export {
+  coregisterChannels,
+  type CoregisterChannelsOptions,
+  type Coregistration,
+  type CoregistrationPair,
+} from "./coregister-channels";

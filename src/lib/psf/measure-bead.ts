@@ -67,7 +67,12 @@ export interface BeadMeasurement {
   peak: number;
   integrated: number | null;
   fitConverged: { x: boolean; y: boolean; z: boolean; xyz: boolean };
-  fitReasons: { x: FitStopReason | null; y: FitStopReason | null; z: FitStopReason | null; xyz: FitStopReason | null };
+  fitReasons: {
+    x: FitStopReason | null;
+    y: FitStopReason | null;
+    z: FitStopReason | null;
+    xyz: FitStopReason | null;
+  };
 }
 
 const fin = (v: number): number | null => (Number.isFinite(v) ? v : null);
@@ -95,8 +100,20 @@ const fin = (v: number): number | null => (Number.isFinite(v) ? v : null);
  * @example
  * measureBead(stack, { x: 100.2, y: 50.7, z: 40.1 }, options).fwhmXUm;
  */
-export function measureBead(stack: Stack, position: { x: number; y: number; z: number }, options: MeasureBeadOptions): BeadMeasurement {
-  const { expectedFwhmUm, lateralWindowFwhm, axialWindowFwhm, edgeAxialFwhm = 2, saturationLevel, stackBackground, noiseSigma } = options;
+export function measureBead(
+  stack: Stack,
+  position: { x: number; y: number; z: number },
+  options: MeasureBeadOptions,
+): BeadMeasurement {
+  const {
+    expectedFwhmUm,
+    lateralWindowFwhm,
+    axialWindowFwhm,
+    edgeAxialFwhm = 2,
+    saturationLevel,
+    stackBackground,
+    noiseSigma,
+  } = options;
   const vs = stack.voxelSizeUm!;
   const [nz, ny, nx] = stack.shape;
   const d = stack.data;
@@ -115,9 +132,16 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
   let peak = -Infinity;
   for (let z = Math.max(0, cz - sz); z <= Math.min(nz - 1, cz + sz); z++)
     for (let y = Math.max(0, cy - sy); y <= Math.min(ny - 1, cy + sy); y++)
-      for (let x = Math.max(0, cx - sx); x <= Math.min(nx - 1, cx + sx); x++) peak = Math.max(peak, at(z, y, x));
+      for (let x = Math.max(0, cx - sx); x <= Math.min(nx - 1, cx + sx); x++)
+        peak = Math.max(peak, at(z, y, x));
   const saturated = peak >= saturationLevel;
-  const edge = cx - hx < 0 || cx + hx > nx - 1 || cy - hy < 0 || cy + hy > ny - 1 || cz - hzEdge < 0 || cz + hzEdge > nz - 1;
+  const edge =
+    cx - hx < 0 ||
+    cx + hx > nx - 1 ||
+    cy - hy < 0 ||
+    cy + hy > ny - 1 ||
+    cz - hzEdge < 0 ||
+    cz + hzEdge > nz - 1;
 
   const out: BeadMeasurement = {
     xPx: position.x,
@@ -165,7 +189,10 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
   const fitAll = (): { fx: Gaussian1dFit; fy: Gaussian1dFit; fz: Gaussian1dFit; hz: number; bg: number } => {
     const fx = fitLine(stack, "x", cz, cy, cx, cx - hx, cx + hx, options.maxIterations1d);
     const fy = fitLine(stack, "y", cz, cy, cx, cy - hy, cy + hy, options.maxIterations1d);
-    const bgLat = Number.isFinite(fx.background) && Number.isFinite(fy.background) ? 0.5 * (fx.background + fy.background) : stackBackground;
+    const bgLat =
+      Number.isFinite(fx.background) && Number.isFinite(fy.background)
+        ? 0.5 * (fx.background + fy.background)
+        : stackBackground;
     const z0 = Math.max(0, cz - hzWide);
     const z1 = Math.min(nz - 1, cz + hzWide);
     const wide = new Float64Array(z1 - z0 + 1);
@@ -195,7 +222,10 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
   }
   const { fx, fy, fz } = f;
   const failed = (g: Gaussian1dFit) =>
-    g.reason === "non_finite" || g.reason === "singular" || g.reason === "too_few_points" || !(g.amplitude > 0);
+    g.reason === "non_finite" ||
+    g.reason === "singular" ||
+    g.reason === "too_few_points" ||
+    !(g.amplitude > 0);
   out.fitFailed = failed(fx) || failed(fy) || failed(fz);
   out.widthAtBound = fx.sigmaAtBound || fy.sigmaAtBound || fz.sigmaAtBound;
   out.fitConverged = { x: fx.converged, y: fy.converged, z: fz.converged, xyz: false };
@@ -218,7 +248,10 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
   if (out.fwhmXUm !== null && out.fwhmYUm !== null && out.fwhmXUm > 0 && out.fwhmYUm > 0)
     out.lateralAsymmetry = Math.min(out.fwhmXUm, out.fwhmYUm) / Math.max(out.fwhmXUm, out.fwhmYUm);
 
-  const axialFwhmUm = Math.min(Math.max(out.fwhmZUm ?? expectedFwhmUm.axial, expectedFwhmUm.axial), 4 * expectedFwhmUm.axial);
+  const axialFwhmUm = Math.min(
+    Math.max(out.fwhmZUm ?? expectedFwhmUm.axial, expectedFwhmUm.axial),
+    4 * expectedFwhmUm.axial,
+  );
 
   // 3D fit on the ellipsoid of semi-axes 1.5 FWHM (lateral expected, axial measured), clipped to the stack.
   if (options.fit3d && !out.fitFailed) {
@@ -234,7 +267,8 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
     const shape: [number, number, number] = [z1 - z0 + 1, y1 - y0 + 1, x1 - x0 + 1];
     const win = new Float64Array(shape[0] * shape[1] * shape[2]);
     let k = 0;
-    for (let z = z0; z <= z1; z++) for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) win[k++] = at(z, y, x);
+    for (let z = z0; z <= z1; z++)
+      for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) win[k++] = at(z, y, x);
     const g = fitGaussian3d(
       { data: win, shape, voxelSizeUm: vs },
       {
@@ -247,8 +281,8 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
           x: (out.xPx - x0) * vs.x,
           y: (out.yPx - y0) * vs.y,
           z: (out.zPx - z0) * vs.z,
-          sigmaX: ((out.fwhmXUm ?? expectedFwhmUm.lateral) / FWHM_PER_SIGMA),
-          sigmaY: ((out.fwhmYUm ?? expectedFwhmUm.lateral) / FWHM_PER_SIGMA),
+          sigmaX: (out.fwhmXUm ?? expectedFwhmUm.lateral) / FWHM_PER_SIGMA,
+          sigmaY: (out.fwhmYUm ?? expectedFwhmUm.lateral) / FWHM_PER_SIGMA,
           sigmaZ: axialFwhmUm / FWHM_PER_SIGMA,
         },
       },
@@ -314,7 +348,12 @@ export function measureBead(stack: Stack, position: { x: number; y: number; z: n
   const zc = out.zPx - za;
   const hm = halfMaximumWidth(line, bg, zc);
   out.fwhmZDirectUm = hm.width !== null ? hm.width * vs.z : null;
-  const asym = axialAsymmetry(onAxis, energy, Math.min(line.length - 1, Math.max(0, zc)), options.farIsIncreasingZ);
+  const asym = axialAsymmetry(
+    onAxis,
+    energy,
+    Math.min(line.length - 1, Math.max(0, zc)),
+    options.farIsIncreasingZ,
+  );
   out.axialAsymmetry = asym.sideLobeRatio;
   out.axialSkewness = asym.skewness;
   out.axialEnergyRatio = asym.energyRatio;
@@ -368,7 +407,16 @@ function clampInt(v: number, n: number): number {
 }
 
 /** Fit a 1D Gaussian to the line along `axis` through (cz, cy, cx) over [i0, i1] (clipped); positions in voxels. */
-function fitLine(stack: Stack, axis: "x" | "y" | "z", cz: number, cy: number, cx: number, i0: number, i1: number, maxIterations: number): Gaussian1dFit {
+function fitLine(
+  stack: Stack,
+  axis: "x" | "y" | "z",
+  cz: number,
+  cy: number,
+  cx: number,
+  i0: number,
+  i1: number,
+  maxIterations: number,
+): Gaussian1dFit {
   const [nz, ny, nx] = stack.shape;
   const n = axis === "x" ? nx : axis === "y" ? ny : nz;
   const a = Math.max(0, i0);
@@ -384,5 +432,10 @@ function fitLine(stack: Stack, axis: "x" | "y" | "z", cz: number, cy: number, cx
     prof[i - a] = d[(z * ny + y) * nx + x];
     pos[i - a] = i;
   }
-  return fitGaussian1d(prof, { positions: pos, maxIterations, sigmaMin: 0.25, sigmaMax: Math.max(1, len / 2) });
+  return fitGaussian1d(prof, {
+    positions: pos,
+    maxIterations,
+    sigmaMin: 0.25,
+    sigmaMax: Math.max(1, len / 2),
+  });
 }

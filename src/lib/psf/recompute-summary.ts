@@ -17,7 +17,12 @@ export interface RecomputeSummaryOptions {
   /** @default 10 */
   maxDepthBins?: number;
   /** Field geometry; when given, the field dependence is recomputed too. */
-  field?: { fieldWidthUm: number; fieldHeightUm: number; focusLayerThicknessUm: number; centralFraction?: number };
+  field?: {
+    fieldWidthUm: number;
+    fieldHeightUm: number;
+    focusLayerThicknessUm: number;
+    centralFraction?: number;
+  };
 }
 
 /** Result of {@link recomputeSummary}. */
@@ -45,8 +50,19 @@ export interface RecomputedSummary {
  * @example
  * recomputeSummary(result.beads, { excludedBeadIds: [3] }).summary.used;
  */
-export function recomputeSummary(beads: readonly BeadResult[], options: RecomputeSummaryOptions = {}): RecomputedSummary {
-  const { excludedBeadIds = [], includedOverrides = {}, beadDiameterNm, beadLabel = "solid", minBeadsPerBin = 5, maxDepthBins = 10, field } = options;
+export function recomputeSummary(
+  beads: readonly BeadResult[],
+  options: RecomputeSummaryOptions = {},
+): RecomputedSummary {
+  const {
+    excludedBeadIds = [],
+    includedOverrides = {},
+    beadDiameterNm,
+    beadLabel = "solid",
+    minBeadsPerBin = 5,
+    maxDepthBins = 10,
+    field,
+  } = options;
   const out = applyInclusion(beads, excludedBeadIds, includedOverrides);
   return {
     beads: out,
@@ -58,7 +74,11 @@ export function recomputeSummary(beads: readonly BeadResult[], options: Recomput
 }
 
 /** Copies of the beads with `included` set from the engine decision and the user's toggles. */
-export function applyInclusion(beads: readonly BeadResult[], excludedBeadIds: readonly number[], includedOverrides: Record<number, boolean>): BeadResult[] {
+export function applyInclusion(
+  beads: readonly BeadResult[],
+  excludedBeadIds: readonly number[],
+  includedOverrides: Record<number, boolean>,
+): BeadResult[] {
   const excluded = new Set(excludedBeadIds);
   return beads.map((b) => {
     const o = includedOverrides[b.id];

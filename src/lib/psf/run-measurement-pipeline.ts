@@ -83,7 +83,10 @@ const MATCHED_RI_TOLERANCE = 0.002;
 export async function runMeasurementPipeline(
   bytes: Uint8Array,
   params: MeasurementParameters,
-  options: { maxVoxels?: number; onProgress?: (stage: AnalysisStage | "reading" | "modelling", fraction: number) => void } = {},
+  options: {
+    maxVoxels?: number;
+    onProgress?: (stage: AnalysisStage | "reading" | "modelling", fraction: number) => void;
+  } = {},
 ): Promise<MeasurementPipelineResult> {
   const { onProgress } = options;
   onProgress?.("reading", 0);
@@ -126,7 +129,9 @@ export async function runMeasurementPipeline(
     coverslipThicknessUm: params.designCoverslipUm ?? 170,
   };
   onProgress?.("modelling", 0);
-  const depth = mismatch ? makeNominalToActualDepth(gl, { maxDepthUm: Math.max(10, nominalDepthUm * 1.3) }) : null;
+  const depth = mismatch
+    ? makeNominalToActualDepth(gl, { maxDepthUm: Math.max(10, nominalDepthUm * 1.3) })
+    : null;
 
   const analysis = analyzeStack(stack, {
     // Windows and exclusion distances scale with what the lens should do; real
@@ -151,7 +156,9 @@ export async function runMeasurementPipeline(
     // Scale this modality's theoretical widths by the model's relative broadening.
     lateralFwhmUm:
       (theory.lateralNm / 1000) *
-      (Number.isFinite(row.lateralFwhmUm) && Number.isFinite(surface.lateralFwhmUm) ? row.lateralFwhmUm / surface.lateralFwhmUm : 1),
+      (Number.isFinite(row.lateralFwhmUm) && Number.isFinite(surface.lateralFwhmUm)
+        ? row.lateralFwhmUm / surface.lateralFwhmUm
+        : 1),
     axialFwhmUm: (theory.axialNm / 1000) * (row.axialFwhmUm / surface.axialFwhmUm),
     peakRelative: row.peakRelative,
     focalShiftFactor: row.focalShiftFactor,
@@ -196,15 +203,30 @@ function fitSampleRi(
 ): MeasurementPipelineResult["effectiveRi"] {
   const rows = analysis.depthProfile
     .filter((r) => r.count >= 2 && r.fwhmZ.medianUm != null)
-    .map((r) => ({ depth: r.apparentDepthMedianUm, axial: r.fwhmZ.medianUm!, lateral: r.fwhmX.medianUm, asym: r.medianAxialAsymmetry }));
+    .map((r) => ({
+      depth: r.apparentDepthMedianUm,
+      axial: r.fwhmZ.medianUm!,
+      lateral: r.fwhmX.medianUm,
+      asym: r.medianAxialAsymmetry,
+    }));
   if (rows.length < MIN_FIT_BINS) {
-    return { fit: null, reason: `Beads fall into ${rows.length} depth bin(s); an index fit needs at least ${MIN_FIT_BINS}.` };
+    return {
+      fit: null,
+      reason: `Beads fall into ${rows.length} depth bin(s); an index fit needs at least ${MIN_FIT_BINS}.`,
+    };
   }
   const span = Math.max(...rows.map((r) => r.depth)) - Math.min(...rows.map((r) => r.depth));
   if (span < MIN_FIT_SPAN_UM) {
-    return { fit: null, reason: `Beads span only ${span.toFixed(1)} µm of depth; an index fit needs at least ${MIN_FIT_SPAN_UM} µm.` };
+    return {
+      fit: null,
+      reason: `Beads span only ${span.toFixed(1)} µm of depth; an index fit needs at least ${MIN_FIT_SPAN_UM} µm.`,
+    };
   }
-  const widefieldAxialNm = widefieldFwhm({ na: params.na, immersionRi: params.immersionRi, wavelengthNm: params.emissionWavelengthNm }).axialNm;
+  const widefieldAxialNm = widefieldFwhm({
+    na: params.na,
+    immersionRi: params.immersionRi,
+    wavelengthNm: params.emissionWavelengthNm,
+  }).axialNm;
   const scale = params.modality === "widefield" ? 1 : widefieldAxialNm / theory.axialNm;
   try {
     const fit = fitEffectiveSampleRi(
@@ -217,8 +239,16 @@ function fitSampleRi(
       { optics: gl, depthKind: "nominal" },
     );
     const verdict = judgeDeclaredRi(fit, params.sampleRi);
-    return { fit, consistentWithDeclared: verdict.consistent, message: verdict.message, widefieldScale: scale };
+    return {
+      fit,
+      consistentWithDeclared: verdict.consistent,
+      message: verdict.message,
+      widefieldScale: scale,
+    };
   } catch (err) {
-    return { fit: null, reason: `The index fit could not run: ${err instanceof Error ? err.message : String(err)}` };
+    return {
+      fit: null,
+      reason: `The index fit could not run: ${err instanceof Error ? err.message : String(err)}`,
+    };
   }
 }

@@ -1,4 +1,10 @@
-import type { BeadResult, BeadSizeCorrection, PsfSummary, RejectReason, WidthStatistics } from "./analysis-types";
+import type {
+  BeadResult,
+  BeadSizeCorrection,
+  PsfSummary,
+  RejectReason,
+  WidthStatistics,
+} from "./analysis-types";
 import { correctForBeadSize } from "./bead-size-correction";
 import { median, quantileSorted, sortedFinite } from "./quantile";
 
@@ -10,7 +16,13 @@ export interface SummarizeBeadsOptions {
 }
 
 type WidthKey = "fwhmXUm" | "fwhmYUm" | "fwhmZUm" | "fwhmZDirectUm" | "fwhm3dXUm" | "fwhm3dYUm" | "fwhm3dZUm";
-type UncKey = "fwhmXUncertaintyUm" | "fwhmYUncertaintyUm" | "fwhmZUncertaintyUm" | "fwhm3dXUncertaintyUm" | "fwhm3dYUncertaintyUm" | "fwhm3dZUncertaintyUm";
+type UncKey =
+  | "fwhmXUncertaintyUm"
+  | "fwhmYUncertaintyUm"
+  | "fwhmZUncertaintyUm"
+  | "fwhm3dXUncertaintyUm"
+  | "fwhm3dYUncertaintyUm"
+  | "fwhm3dZUncertaintyUm";
 
 /**
  * Summary of a bead list: counts (found / used / rejected by reason) and, over the included
@@ -28,7 +40,10 @@ type UncKey = "fwhmXUncertaintyUm" | "fwhmYUncertaintyUm" | "fwhmZUncertaintyUm"
  * @example
  * summarizeBeads(beads).fwhmX.medianUm;
  */
-export function summarizeBeads(beads: readonly BeadResult[], options: SummarizeBeadsOptions = {}): PsfSummary {
+export function summarizeBeads(
+  beads: readonly BeadResult[],
+  options: SummarizeBeadsOptions = {},
+): PsfSummary {
   const { beadDiameterNm, beadLabel = "solid" } = options;
   const used = beads.filter((b) => b.included);
   const rejectedByReason: Partial<Record<RejectReason, number>> = {};
@@ -86,7 +101,18 @@ export function widthStatistics(
   const s = sortedFinite(beads.map((b) => b[key] ?? Number.NaN));
   const n = s.length;
   if (n === 0)
-    return { count: 0, medianUm: null, q1Um: null, q3Um: null, iqrUm: null, minUm: null, maxUm: null, medianFitUncertaintyUm: null, medianStandardErrorUm: null, medianCorrectedUm: null };
+    return {
+      count: 0,
+      medianUm: null,
+      q1Um: null,
+      q3Um: null,
+      iqrUm: null,
+      minUm: null,
+      maxUm: null,
+      medianFitUncertaintyUm: null,
+      medianStandardErrorUm: null,
+      medianCorrectedUm: null,
+    };
   const q1 = quantileSorted(s, 0.25);
   const q3 = quantileSorted(s, 0.75);
   const m = quantileSorted(s, 0.5);

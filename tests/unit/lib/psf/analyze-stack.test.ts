@@ -6,15 +6,32 @@ import { analyzeStack, ENGINE_VERSION, recomputeSummary, type AnalysisStage } fr
 const VOXEL = { x: 0.065, y: 0.065, z: 0.1 };
 const FWHM = { lateral: 0.25, axial: 0.7 };
 
-function scatteredBeads(n: number, seed: number, shape: [number, number, number], amp = [600, 2000]): SyntheticBead[] {
+function scatteredBeads(
+  n: number,
+  seed: number,
+  shape: [number, number, number],
+  amp = [600, 2000],
+): SyntheticBead[] {
   const rng = makeRng(seed);
   const out: SyntheticBead[] = [];
   const [nz, ny, nx] = shape;
   let guard = 0;
   while (out.length < n && guard++ < 10000) {
-    const b = { x: 14 + rng() * (nx - 28), y: 14 + rng() * (ny - 28), z: 18 + rng() * (nz - 36), amplitude: amp[0] + rng() * (amp[1] - amp[0]) };
+    const b = {
+      x: 14 + rng() * (nx - 28),
+      y: 14 + rng() * (ny - 28),
+      z: 18 + rng() * (nz - 36),
+      amplitude: amp[0] + rng() * (amp[1] - amp[0]),
+    };
     // Keep ≥ 1.2 µm lateral or ≥ 2 µm axial from the others (outside the 3 FWHM / 2 FWHM exclusion).
-    if (out.every((o) => Math.hypot((o.x - b.x) * VOXEL.x, (o.y - b.y) * VOXEL.y) > 1.2 || Math.abs(o.z - b.z) * VOXEL.z > 2.2)) out.push(b);
+    if (
+      out.every(
+        (o) =>
+          Math.hypot((o.x - b.x) * VOXEL.x, (o.y - b.y) * VOXEL.y) > 1.2 ||
+          Math.abs(o.z - b.z) * VOXEL.z > 2.2,
+      )
+    )
+      out.push(b);
   }
   return out;
 }
@@ -44,7 +61,12 @@ describe("analyzeStack — known truth with Gaussian beads", () => {
     expect(Math.abs(r.summary.medianAxialAsymmetry!)).toBeLessThan(0.03);
     expect(r.summary.medianDriftUmPerUm!).toBeLessThan(0.05);
     for (const b of r.beads) {
-      const t = beads.reduce((best, x) => (Math.hypot(x.x - b.xPx, x.y - b.yPx, x.z - b.zPx) < Math.hypot(best.x - b.xPx, best.y - b.yPx, best.z - b.zPx) ? x : best));
+      const t = beads.reduce((best, x) =>
+        Math.hypot(x.x - b.xPx, x.y - b.yPx, x.z - b.zPx) <
+        Math.hypot(best.x - b.xPx, best.y - b.yPx, best.z - b.zPx)
+          ? x
+          : best,
+      );
       // Source: computed here — centre errors well below a voxel at these SNRs.
       expect(Math.abs(t.x - b.xPx) * VOXEL.x).toBeLessThan(0.02);
       expect(Math.abs(t.z - b.zPx) * VOXEL.z).toBeLessThan(0.05);
@@ -59,7 +81,10 @@ describe("analyzeStack — known truth with Gaussian beads", () => {
   it("reports the bead-size correction only where applicable", () => {
     // Source: METHODS.md §7 — 100 nm solid bead: 52.65 nm < 0.5·250 nm → corrected laterally and axially.
     expect(r.summary.beadSizeCorrection.beadFwhmUm!).toBeCloseToAbs(0.05265, 1e-9);
-    expect(r.summary.fwhmX.medianCorrectedUm!).toBeCloseToAbs(Math.sqrt(r.summary.fwhmX.medianUm! ** 2 - 0.05265 ** 2), 1e-12);
+    expect(r.summary.fwhmX.medianCorrectedUm!).toBeCloseToAbs(
+      Math.sqrt(r.summary.fwhmX.medianUm! ** 2 - 0.05265 ** 2),
+      1e-12,
+    );
     expect(r.summary.beadSizeCorrection.appliedLateral).toBe(true);
   });
 
@@ -109,7 +134,11 @@ describe("analyzeStack — depth", () => {
   ];
   const stack = makeSyntheticStack({ shape, voxelSizeUm: VOXEL, beads, fwhmUm: FWHM, seed: 5 });
   it("uses the user coverslip slice, the injected nominal→actual mapping and keeps both depths", () => {
-    const r = analyzeStack(stack, { expectedFwhmUm: FWHM, coverslipSlice: 10, nominalToActualDepth: (d) => 0.8 * d });
+    const r = analyzeStack(stack, {
+      expectedFwhmUm: FWHM,
+      coverslipSlice: 10,
+      nominalToActualDepth: (d) => 0.8 * d,
+    });
     const b = r.beads.find((x) => Math.abs(x.zPx - 40) < 1)!;
     // Source: computed here — apparent = (40 − 10)·0.1 µm = 3 µm; actual = 0.8 × 3 µm.
     expect(b.apparentDepthUm).toBeCloseToAbs(3, 0.02);
@@ -121,7 +150,11 @@ describe("analyzeStack — depth", () => {
     const r = analyzeStack(stack, { expectedFwhmUm: FWHM, coverslipPercentile: 0 });
     expect(r.provenance.stack.coverslipSource).toBe("estimated");
     expect(r.provenance.stack.coverslipSlice).toBeCloseToAbs(20, 0.2);
-    const f = analyzeStack(stack, { expectedFwhmUm: FWHM, coverslipPercentile: 0, intoSampleIsIncreasingZ: false });
+    const f = analyzeStack(stack, {
+      expectedFwhmUm: FWHM,
+      coverslipPercentile: 0,
+      intoSampleIsIncreasingZ: false,
+    });
     expect(f.provenance.stack.coverslipSlice).toBeCloseToAbs(60, 0.2);
     const deep = f.beads.find((x) => Math.abs(x.zPx - 20) < 1)!;
     expect(deep.apparentDepthUm).toBeCloseToAbs(4, 0.03);
@@ -132,24 +165,49 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
   const base = { expectedFwhmUm: FWHM };
   it("throws named errors for bad input", () => {
     const ok = makeSyntheticStack({ shape: [5, 16, 16], voxelSizeUm: VOXEL, beads: [] });
-    expect(() => analyzeStack({ ...ok, data: new Uint16Array(0), shape: [0, 16, 16] }, base)).toThrow(RangeError);
-    expect(() => analyzeStack({ ...ok, data: new Uint16Array(0), shape: [0, 16, 16] }, base)).toThrow(/stack is empty/);
-    expect(() => analyzeStack({ ...ok, data: new Uint16Array(256), shape: [1, 16, 16] }, base)).toThrow(/stack.shape\[0\] \(slices\) must be ≥ 3 for axial measurement; got 1/);
+    expect(() => analyzeStack({ ...ok, data: new Uint16Array(0), shape: [0, 16, 16] }, base)).toThrow(
+      RangeError,
+    );
+    expect(() => analyzeStack({ ...ok, data: new Uint16Array(0), shape: [0, 16, 16] }, base)).toThrow(
+      /stack is empty/,
+    );
+    expect(() => analyzeStack({ ...ok, data: new Uint16Array(256), shape: [1, 16, 16] }, base)).toThrow(
+      /stack.shape\[0\] \(slices\) must be ≥ 3 for axial measurement; got 1/,
+    );
     expect(() => analyzeStack({ ...ok, voxelSizeUm: null }, base)).toThrow(TypeError);
     expect(() => analyzeStack({ ...ok, voxelSizeUm: null }, base)).toThrow(/stack.voxelSizeUm is required/);
-    expect(() => analyzeStack({ ...ok, voxelSizeUm: { x: 0.1, y: 0, z: 0.2 } }, base)).toThrow(/voxelSizeUm.y must be a positive number of µm; got 0/);
-    expect(() => analyzeStack({ ...ok, shape: [5, 16, 15] }, base)).toThrow(/does not match stack.data.length/);
-    expect(() => analyzeStack(ok, {} as never)).toThrow(/options.expectedFwhmUm \{ lateral, axial \} \(µm\) is required/);
-    expect(() => analyzeStack(ok, { expectedFwhmUm: { lateral: -1, axial: 0.7 } })).toThrow(/expectedFwhmUm.lateral must be > 0 µm; got -1/);
-    expect(() => analyzeStack(ok, { ...base, thresholdK: 0 })).toThrow(/options.thresholdK must be > 0; got 0/);
-    expect(() => analyzeStack(ok, { ...base, coverslipSlice: 9 })).toThrow(/options.coverslipSlice must be in \[0, 4\]; got 9/);
+    expect(() => analyzeStack({ ...ok, voxelSizeUm: { x: 0.1, y: 0, z: 0.2 } }, base)).toThrow(
+      /voxelSizeUm.y must be a positive number of µm; got 0/,
+    );
+    expect(() => analyzeStack({ ...ok, shape: [5, 16, 15] }, base)).toThrow(
+      /does not match stack.data.length/,
+    );
+    expect(() => analyzeStack(ok, {} as never)).toThrow(
+      /options.expectedFwhmUm \{ lateral, axial \} \(µm\) is required/,
+    );
+    expect(() => analyzeStack(ok, { expectedFwhmUm: { lateral: -1, axial: 0.7 } })).toThrow(
+      /expectedFwhmUm.lateral must be > 0 µm; got -1/,
+    );
+    expect(() => analyzeStack(ok, { ...base, thresholdK: 0 })).toThrow(
+      /options.thresholdK must be > 0; got 0/,
+    );
+    expect(() => analyzeStack(ok, { ...base, coverslipSlice: 9 })).toThrow(
+      /options.coverslipSlice must be in \[0, 4\]; got 9/,
+    );
     expect(() => analyzeStack(ok, { ...base, aggregateFactor: 1 })).toThrow(/aggregateFactor must be > 1/);
     expect(() => analyzeStack(ok, { ...base, r2Floor: 1 })).toThrow(/r2Floor must be in \[0, 1\)/);
-    expect(() => analyzeStack(ok, { ...base, nominalToActualDepth: 3 as never })).toThrow(/nominalToActualDepth must be a function/);
+    expect(() => analyzeStack(ok, { ...base, nominalToActualDepth: 3 as never })).toThrow(
+      /nominalToActualDepth must be a function/,
+    );
   });
 
   it("a constant image gives no beads and null statistics, without throwing", () => {
-    const s: Stack = { data: new Uint16Array(10 * 32 * 32).fill(500), shape: [10, 32, 32], dtype: "uint16", voxelSizeUm: VOXEL };
+    const s: Stack = {
+      data: new Uint16Array(10 * 32 * 32).fill(500),
+      shape: [10, 32, 32],
+      dtype: "uint16",
+      voxelSizeUm: VOXEL,
+    };
     const r = analyzeStack(s, base);
     expect(r.beads).toEqual([]);
     expect(r.summary.used).toBe(0);
@@ -160,7 +218,12 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
   });
 
   it("three slices vs many: a thin stack is analysed but its beads are axial-edge rejected", () => {
-    const s = makeSyntheticStack({ shape: [3, 64, 64], voxelSizeUm: VOXEL, beads: [{ x: 32, y: 32, z: 1, amplitude: 1500 }], fwhmUm: FWHM });
+    const s = makeSyntheticStack({
+      shape: [3, 64, 64],
+      voxelSizeUm: VOXEL,
+      beads: [{ x: 32, y: 32, z: 1, amplitude: 1500 }],
+      fwhmUm: FWHM,
+    });
     const r = analyzeStack(s, base);
     expect(r.beads.length).toBe(1);
     expect(r.beads[0].rejectReason).toBe("edge");
@@ -168,7 +231,15 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
   });
 
   it("a peak touching the border is kept and rejected as edge", () => {
-    const s = makeSyntheticStack({ shape: [60, 64, 64], voxelSizeUm: VOXEL, beads: [{ x: 0, y: 30, z: 30, amplitude: 1500 }, { x: 32, y: 32, z: 30, amplitude: 1500 }], fwhmUm: FWHM });
+    const s = makeSyntheticStack({
+      shape: [60, 64, 64],
+      voxelSizeUm: VOXEL,
+      beads: [
+        { x: 0, y: 30, z: 30, amplitude: 1500 },
+        { x: 32, y: 32, z: 30, amplitude: 1500 },
+      ],
+      fwhmUm: FWHM,
+    });
     const r = analyzeStack(s, base);
     const edge = r.beads.find((b) => b.xPx < 5)!;
     expect(edge.rejectReason).toBe("edge");
@@ -178,11 +249,25 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
   });
 
   it("a saturated bead is rejected as saturated (dtype maximum), a flat-topped peak once and saturated at a user ceiling", () => {
-    const s = makeSyntheticStack({ shape: [60, 96, 96], voxelSizeUm: VOXEL, beads: [{ x: 30, y: 30, z: 30, amplitude: 200000 }, { x: 65, y: 65, z: 30, amplitude: 1500 }], fwhmUm: FWHM });
+    const s = makeSyntheticStack({
+      shape: [60, 96, 96],
+      voxelSizeUm: VOXEL,
+      beads: [
+        { x: 30, y: 30, z: 30, amplitude: 200000 },
+        { x: 65, y: 65, z: 30, amplitude: 1500 },
+      ],
+      fwhmUm: FWHM,
+    });
     const r = analyzeStack(s, base);
     expect(r.beads.find((b) => Math.abs(b.xPx - 30) < 2)!.rejectReason).toBe("saturated");
     // Flat top: clip a float32 render at 800 counts and declare that the ceiling.
-    const f = makeSyntheticStack({ shape: [60, 96, 96], voxelSizeUm: VOXEL, beads: [{ x: 48.3, y: 47.6, z: 30.2, amplitude: 3000 }], fwhmUm: FWHM, dtype: "float32" });
+    const f = makeSyntheticStack({
+      shape: [60, 96, 96],
+      voxelSizeUm: VOXEL,
+      beads: [{ x: 48.3, y: 47.6, z: 30.2, amplitude: 3000 }],
+      fwhmUm: FWHM,
+      dtype: "float32",
+    });
     const clipped = Float32Array.from(f.data, (v) => Math.min(v, 800));
     const rf = analyzeStack({ ...f, data: clipped }, { ...base, saturationCeiling: 800 });
     expect(rf.beads.length).toBe(1);
@@ -192,10 +277,25 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
 
   it("two beads closer than the minimum separation give one detection, not included", () => {
     const shape: [number, number, number] = [60, 128, 128];
-    const singles: SyntheticBead[] = [[25, 25], [100, 25], [25, 100], [100, 100], [62, 25]].map(([x, y]) => ({ x, y, z: 30, amplitude: 1200 }));
+    const singles: SyntheticBead[] = [
+      [25, 25],
+      [100, 25],
+      [25, 100],
+      [100, 100],
+      [62, 25],
+    ].map(([x, y]) => ({ x, y, z: 30, amplitude: 1200 }));
     // 0.2 µm apart (< merge distance 2 × 0.25 µm): an unresolved doublet with twice the integrated intensity.
-    const pair: SyntheticBead[] = [{ x: 62, y: 64, z: 30, amplitude: 1200 }, { x: 62 + 0.2 / VOXEL.x, y: 64, z: 30, amplitude: 1200 }];
-    const s = makeSyntheticStack({ shape, voxelSizeUm: VOXEL, beads: [...singles, ...pair], fwhmUm: FWHM, seed: 2 });
+    const pair: SyntheticBead[] = [
+      { x: 62, y: 64, z: 30, amplitude: 1200 },
+      { x: 62 + 0.2 / VOXEL.x, y: 64, z: 30, amplitude: 1200 },
+    ];
+    const s = makeSyntheticStack({
+      shape,
+      voxelSizeUm: VOXEL,
+      beads: [...singles, ...pair],
+      fwhmUm: FWHM,
+      seed: 2,
+    });
     const r = analyzeStack(s, base);
     const near = r.beads.filter((b) => Math.hypot(b.xPx - 63.5, b.yPx - 64) < 8);
     expect(near.length).toBe(1);
@@ -207,8 +307,19 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
 
   it("non-isotropic voxels: widths in µm are recovered", () => {
     const vs = { x: 0.05, y: 0.08, z: 0.2 };
-    const beads = [[30, 20], [70, 20], [30, 45], [70, 45]].map(([x, y]) => ({ x, y, z: 20, amplitude: 2000 }));
-    const s = makeSyntheticStack({ shape: [40, 64, 100], voxelSizeUm: vs, beads, fwhmUm: { lateral: 0.3, axial: 0.9 }, seed: 6 });
+    const beads = [
+      [30, 20],
+      [70, 20],
+      [30, 45],
+      [70, 45],
+    ].map(([x, y]) => ({ x, y, z: 20, amplitude: 2000 }));
+    const s = makeSyntheticStack({
+      shape: [40, 64, 100],
+      voxelSizeUm: vs,
+      beads,
+      fwhmUm: { lateral: 0.3, axial: 0.9 },
+      seed: 6,
+    });
     const r = analyzeStack(s, { expectedFwhmUm: { lateral: 0.3, axial: 0.9 } });
     expect(r.summary.used).toBe(4);
     // Source: computed here (Gaussian PSF 0.3 / 0.9 µm).
@@ -220,7 +331,12 @@ describe("analyzeStack — edge cases (STYLE C8)", () => {
 
 describe("include/exclude toggles", () => {
   const shape: [number, number, number] = [60, 96, 96];
-  const beads = [[25, 25], [70, 25], [25, 70], [70, 70]].map(([x, y]) => ({ x, y, z: 30, amplitude: 1500 }));
+  const beads = [
+    [25, 25],
+    [70, 25],
+    [25, 70],
+    [70, 70],
+  ].map(([x, y]) => ({ x, y, z: 30, amplitude: 1500 }));
   const s = makeSyntheticStack({ shape, voxelSizeUm: VOXEL, beads, fwhmUm: FWHM, seed: 8 });
   it("excludedBeadIds and includedOverrides are applied by analyzeStack and recomputeSummary without refitting", () => {
     const r = analyzeStack(s, { expectedFwhmUm: FWHM, excludedBeadIds: [1] });

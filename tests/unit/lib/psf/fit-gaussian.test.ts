@@ -34,7 +34,10 @@ describe("fitGaussian1d", () => {
     const ses: number[] = [];
     for (let trial = 0; trial < 300; trial++) {
       const c = 15 + (rng() - 0.5) * 2;
-      const y = Array.from({ length: 31 }, (_, i) => 100 + 1000 * Math.exp(-((i - c) ** 2) / (2 * 2.5 ** 2)) + 20 * gauss(rng));
+      const y = Array.from(
+        { length: 31 },
+        (_, i) => 100 + 1000 * Math.exp(-((i - c) ** 2) / (2 * 2.5 ** 2)) + 20 * gauss(rng),
+      );
       const f = fitGaussian1d(y);
       sigmas.push(f.sigma);
       ses.push(f.sigmaSe);
@@ -70,7 +73,18 @@ describe("fitGaussian1d", () => {
 
 describe("fitModel", () => {
   it("reports too_few_points instead of throwing", () => {
-    const r = fitModel([1, 2], { nParams: 2, value: (p, i) => p[0] + p[1] * i, gradient: (_p, i, out) => { out[0] = 1; out[1] = i; } }, { initialValues: [0, 0] });
+    const r = fitModel(
+      [1, 2],
+      {
+        nParams: 2,
+        value: (p, i) => p[0] + p[1] * i,
+        gradient: (_p, i, out) => {
+          out[0] = 1;
+          out[1] = i;
+        },
+      },
+      { initialValues: [0, 0] },
+    );
     expect(r.reason).toBe("too_few_points");
     expect(r.converged).toBe(false);
   });
@@ -80,7 +94,18 @@ describe("fitModel", () => {
     const x = [0, 1, 2, 3, 4, 5];
     const e = [0.1, -0.2, 0.05, 0.15, -0.1, 0.0];
     const y = x.map((v, i) => 1 + 2 * v + e[i]);
-    const r = fitModel(y, { nParams: 2, value: (p, i) => p[0] + p[1] * x[i], gradient: (_p, i, out) => { out[0] = 1; out[1] = x[i]; } }, { initialValues: [0, 0], maxIterations: 50 });
+    const r = fitModel(
+      y,
+      {
+        nParams: 2,
+        value: (p, i) => p[0] + p[1] * x[i],
+        gradient: (_p, i, out) => {
+          out[0] = 1;
+          out[1] = x[i];
+        },
+      },
+      { initialValues: [0, 0], maxIterations: 50 },
+    );
     // Source: computed here by hand — Sxx = 17.5, slope SE = s/√Sxx.
     const n = 6;
     const xm = 2.5;
@@ -106,7 +131,15 @@ describe("fitGaussian3d", () => {
     for (let z = 0; z < shape[0]; z++)
       for (let y = 0; y < shape[1]; y++)
         for (let x = 0; x < shape[2]; x++)
-          data[k++] = 100 + 1000 * Math.exp(-((x * vs.x - t.x) ** 2) / (2 * t.sx ** 2) - ((y * vs.y - t.y) ** 2) / (2 * t.sy ** 2) - ((z * vs.z - t.z) ** 2) / (2 * t.sz ** 2)) + 10 * gauss(rng);
+          data[k++] =
+            100 +
+            1000 *
+              Math.exp(
+                -((x * vs.x - t.x) ** 2) / (2 * t.sx ** 2) -
+                  (y * vs.y - t.y) ** 2 / (2 * t.sy ** 2) -
+                  (z * vs.z - t.z) ** 2 / (2 * t.sz ** 2),
+              ) +
+            10 * gauss(rng);
     const f = fitGaussian3d({ data, shape, voxelSizeUm: vs }, { maxIterations: 30 });
     // Source: computed here (synthetic truth; tolerances ≈ 3–5 × the fit SE).
     expect(f.sigmaX).toBeCloseToAbs(0.1, 0.003);
@@ -131,7 +164,14 @@ describe("fitGaussian3d", () => {
           const dy = y * vs.y - 0.5;
           const u = Math.cos(th) * dx + Math.sin(th) * dy;
           const v = -Math.sin(th) * dx + Math.cos(th) * dy;
-          data[k++] = 10 + 100 * Math.exp(-(u * u) / (2 * 0.15 ** 2) - (v * v) / (2 * 0.08 ** 2) - ((z * vs.z - 0.5) ** 2) / (2 * 0.2 ** 2));
+          data[k++] =
+            10 +
+            100 *
+              Math.exp(
+                -(u * u) / (2 * 0.15 ** 2) -
+                  (v * v) / (2 * 0.08 ** 2) -
+                  (z * vs.z - 0.5) ** 2 / (2 * 0.2 ** 2),
+              );
         }
     const f = fitGaussian3d({ data, shape, voxelSizeUm: vs }, { rotation: true, maxIterations: 60 });
     // Source: computed here (noise-free synthetic truth).

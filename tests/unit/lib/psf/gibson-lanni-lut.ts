@@ -3,7 +3,11 @@
  * `psf` callback of fixtures/synthetic-stack.ts. Invented data for tests; never a measurement.
  */
 import type { PsfFunction } from "../../../../fixtures/synthetic-stack";
-import { findGibsonLanniFocus, renderGibsonLanniVolume, type GibsonLanniParams } from "../../../../src/lib/optics";
+import {
+  findGibsonLanniFocus,
+  renderGibsonLanniVolume,
+  type GibsonLanniParams,
+} from "../../../../src/lib/optics";
 
 export interface GibsonLanniLut {
   psf: PsfFunction;
@@ -16,7 +20,12 @@ export interface GibsonLanniLut {
  * the intensity maximum) and return a bilinear-interpolating PSF normalised to 1 at the maximum.
  * dz > 0 = deeper nominal focus (away from the coverslip).
  */
-export function makeGibsonLanniLut(params: GibsonLanniParams, particleDepthUm: number, zHalfUm = 5, rMaxUm = 2): GibsonLanniLut {
+export function makeGibsonLanniLut(
+  params: GibsonLanniParams,
+  particleDepthUm: number,
+  zHalfUm = 5,
+  rMaxUm = 2,
+): GibsonLanniLut {
   const focus = findGibsonLanniFocus(params, particleDepthUm);
   const peakNominalUm = focus.nominalFocusUm;
   const dr = 0.02;

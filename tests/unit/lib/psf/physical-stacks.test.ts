@@ -7,7 +7,13 @@
  */
 import { describe, expect, it } from "vitest";
 import { makeRng, makeSyntheticStack, type SyntheticBead } from "../../../../fixtures/synthetic-stack";
-import { analyzeStack, measureBead, median, resolveAnalyzeOptions, type AnalyzeStackResult } from "../../../../src/lib/psf";
+import {
+  analyzeStack,
+  measureBead,
+  median,
+  resolveAnalyzeOptions,
+  type AnalyzeStackResult,
+} from "../../../../src/lib/psf";
 import { makeGibsonLanniLut } from "./gibson-lanni-lut";
 
 const VOXEL = { x: 0.065, y: 0.065, z: 0.1 };
@@ -39,30 +45,40 @@ function gridBeads(seed: number): SyntheticBead[] {
 
 function match(result: AnalyzeStackResult, truth: SyntheticBead[]) {
   const near = (b: { xPx: number; yPx: number; zPx: number }, t: SyntheticBead) =>
-    Math.hypot((b.xPx - t.x) * VOXEL.x, (b.yPx - t.y) * VOXEL.y) < 0.3 && Math.abs((b.zPx - t.z) * VOXEL.z) < 1.5;
+    Math.hypot((b.xPx - t.x) * VOXEL.x, (b.yPx - t.y) * VOXEL.y) < 0.3 &&
+    Math.abs((b.zPx - t.z) * VOXEL.z) < 1.5;
   const found = truth.filter((t) => result.beads.some((b) => near(b, t))).length;
   const trueDet = result.beads.filter((b) => truth.some((t) => near(b, t))).length;
   return { recall: found / truth.length, precision: trueDet / result.beads.length };
 }
 
-function widthErrors(stack: ReturnType<typeof makeSyntheticStack>, clean: ReturnType<typeof makeSyntheticStack>, result: AnalyzeStackResult, expected: { lateral: number; axial: number }) {
+function widthErrors(
+  stack: ReturnType<typeof makeSyntheticStack>,
+  clean: ReturnType<typeof makeSyntheticStack>,
+  result: AnalyzeStackResult,
+  expected: { lateral: number; axial: number },
+) {
   const o = resolveAnalyzeOptions(stack, { expectedFwhmUm: expected });
   const rel = { x: [] as number[], y: [] as number[], z: [] as number[] };
   for (const b of result.beads.filter((x) => x.included)) {
     // Same profiles on the noise-free render: measure at the same (noisy-fit) centre.
-    const ref = measureBead(clean, { x: b.xPx, y: b.yPx, z: b.zPx }, {
-      expectedFwhmUm: expected,
-      lateralWindowFwhm: o.lateralWindowFwhm,
-      axialWindowFwhm: o.axialWindowFwhm,
-      saturationLevel: Infinity,
-      stackBackground: BACKGROUND,
-      noiseSigma: 1,
-      farIsIncreasingZ: true,
-      fit3d: false,
-      fit3dRotation: false,
-      maxIterations1d: 100,
-      maxIterations3d: 10,
-    });
+    const ref = measureBead(
+      clean,
+      { x: b.xPx, y: b.yPx, z: b.zPx },
+      {
+        expectedFwhmUm: expected,
+        lateralWindowFwhm: o.lateralWindowFwhm,
+        axialWindowFwhm: o.axialWindowFwhm,
+        saturationLevel: Infinity,
+        stackBackground: BACKGROUND,
+        noiseSigma: 1,
+        farIsIncreasingZ: true,
+        fit3d: false,
+        fit3dRotation: false,
+        maxIterations1d: 100,
+        maxIterations3d: 10,
+      },
+    );
     rel.x.push(Math.abs(b.fwhmXUm! / ref.fwhmXUm! - 1));
     rel.y.push(Math.abs(b.fwhmYUm! / ref.fwhmYUm! - 1));
     rel.z.push(Math.abs(b.fwhmZUm! / ref.fwhmZUm! - 1));
@@ -73,20 +89,49 @@ function widthErrors(stack: ReturnType<typeof makeSyntheticStack>, clean: Return
 describe("analyzeStack on Gibson–Lanni stacks", () => {
   const cases = [
     // Source: METHODS.md check values 18–19 (matched NA 1.4 oil, λ 520 nm) and 22–25 (oil NA 1.3 → water at 10 µm).
-    { name: "matched oil NA 1.4", params: { na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.518 }, depth: 0, expected: { lateral: 0.19, axial: 0.5 } },
-    { name: "oil NA 1.3 → water, 10 µm", params: { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333 }, depth: 10, expected: { lateral: 0.21, axial: 0.64 } },
+    {
+      name: "matched oil NA 1.4",
+      params: { na: 1.4, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.518 },
+      depth: 0,
+      expected: { lateral: 0.19, axial: 0.5 },
+    },
+    {
+      name: "oil NA 1.3 → water, 10 µm",
+      params: { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333 },
+      depth: 10,
+      expected: { lateral: 0.21, axial: 0.64 },
+    },
   ];
   for (const c of cases) {
     it(`${c.name}: recall, precision and width accuracy`, () => {
       const lut = makeGibsonLanniLut(c.params, c.depth, 5, 2);
       const beads = gridBeads(11);
-      const common = { shape: SHAPE, voxelSizeUm: VOXEL, beads, psf: lut.psf, renderRadiusUm: { lateral: 1.6, axial: 4.5 }, background: BACKGROUND };
+      const common = {
+        shape: SHAPE,
+        voxelSizeUm: VOXEL,
+        beads,
+        psf: lut.psf,
+        renderRadiusUm: { lateral: 1.6, axial: 4.5 },
+        background: BACKGROUND,
+      };
       const stack = makeSyntheticStack({ ...common, readNoise: READ_NOISE, seed: 5 });
       const clean = makeSyntheticStack({ ...common, readNoise: 0, shotNoise: false, dtype: "float32" });
       const result = analyzeStack(stack, { expectedFwhmUm: c.expected });
       const m = match(result, beads);
       const e = widthErrors(stack, clean, result, c.expected);
-      console.log(c.name, { ...m, ...e, used: result.summary.used, rejected: result.summary.rejectedByReason, fwhm: [result.summary.fwhmX.medianUm, result.summary.fwhmY.medianUm, result.summary.fwhmZ.medianUm, result.summary.fwhmZDirect.medianUm], asym: result.summary.medianAxialAsymmetry });
+      console.log(c.name, {
+        ...m,
+        ...e,
+        used: result.summary.used,
+        rejected: result.summary.rejectedByReason,
+        fwhm: [
+          result.summary.fwhmX.medianUm,
+          result.summary.fwhmY.medianUm,
+          result.summary.fwhmZ.medianUm,
+          result.summary.fwhmZDirect.medianUm,
+        ],
+        asym: result.summary.medianAxialAsymmetry,
+      });
       // Source: issue 4 accuracy targets (detection and width accuracy at peak SNR ≥ 20).
       expect(m.recall).toBeGreaterThanOrEqual(0.95);
       expect(m.precision).toBeGreaterThanOrEqual(0.98);
@@ -109,10 +154,18 @@ describe("analyzeStack on Gibson–Lanni stacks", () => {
   }
 
   it("rejects crowded, saturated and edge beads with the right reason (oil → water PSF)", () => {
-    const lut = makeGibsonLanniLut({ na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333 }, 10, 5, 2);
+    const lut = makeGibsonLanniLut(
+      { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333 },
+      10,
+      5,
+      2,
+    );
     const beads: SyntheticBead[] = [
       // isolated singles (to define the population median for the aggregate rule)
-      ...[40, 80, 120, 160].flatMap((x) => [{ x, y: 40, z: 45, amplitude: 900 }, { x, y: 180, z: 45, amplitude: 900 }]),
+      ...[40, 80, 120, 160].flatMap((x) => [
+        { x, y: 40, z: 45, amplitude: 900 },
+        { x, y: 180, z: 45, amplitude: 900 },
+      ]),
       // crowded pair: 0.45 µm apart laterally (< 3 × 0.21 µm exclusion, > 2 × 0.21 µm merge distance)
       { x: 100, y: 110, z: 45, amplitude: 900 },
       { x: 107, y: 110, z: 45, amplitude: 800 },
@@ -123,7 +176,16 @@ describe("analyzeStack on Gibson–Lanni stacks", () => {
       // edge bead in z: 5 slices from the first plane (window ±2 axial FWHM = ±13 slices)
       { x: 170, y: 110, z: 5, amplitude: 900 },
     ];
-    const stack = makeSyntheticStack({ shape: SHAPE, voxelSizeUm: VOXEL, beads, psf: lut.psf, renderRadiusUm: { lateral: 1.6, axial: 4.5 }, background: BACKGROUND, readNoise: READ_NOISE, seed: 9 });
+    const stack = makeSyntheticStack({
+      shape: SHAPE,
+      voxelSizeUm: VOXEL,
+      beads,
+      psf: lut.psf,
+      renderRadiusUm: { lateral: 1.6, axial: 4.5 },
+      background: BACKGROUND,
+      readNoise: READ_NOISE,
+      seed: 9,
+    });
     const r = analyzeStack(stack, { expectedFwhmUm: { lateral: 0.21, axial: 0.64 } });
     const at = (x: number, y: number, z: number) =>
       r.beads.find((b) => Math.hypot(b.xPx - x, b.yPx - y) < 5 && Math.abs(b.zPx - z) < 15);
@@ -132,7 +194,17 @@ describe("analyzeStack on Gibson–Lanni stacks", () => {
     expect(at(40, 110, 45)?.rejectReason).toBe("saturated");
     expect(at(3, 120, 45)?.rejectReason).toBe("edge");
     expect(at(170, 110, 5)?.rejectReason).toBe("edge");
-    for (const [x, y] of [[40, 40], [80, 40], [120, 40], [160, 40], [40, 180], [80, 180], [120, 180], [160, 180]]) expect(at(x, y, 45)?.included).toBe(true);
+    for (const [x, y] of [
+      [40, 40],
+      [80, 40],
+      [120, 40],
+      [160, 40],
+      [40, 180],
+      [80, 180],
+      [120, 180],
+      [160, 180],
+    ])
+      expect(at(x, y, 45)?.included).toBe(true);
     // Rejected beads are kept, never dropped.
     expect(r.summary.found).toBe(r.beads.length);
     expect(r.summary.rejected).toBe(r.beads.filter((b) => !b.included).length);

@@ -1,5 +1,10 @@
 import { describe, expect, it } from "vitest";
-import { axialAsymmetry, BEAD_FWHM_PER_DIAMETER, correctForBeadSize, halfMaximumWidth } from "../../../../src/lib/psf";
+import {
+  axialAsymmetry,
+  BEAD_FWHM_PER_DIAMETER,
+  correctForBeadSize,
+  halfMaximumWidth,
+} from "../../../../src/lib/psf";
 
 describe("halfMaximumWidth", () => {
   it("interpolates the crossings linearly", () => {
@@ -25,7 +30,11 @@ describe("axialAsymmetry", () => {
   const profile = (lobeFar: number, lobeNear: number) =>
     Array.from({ length: 61 }, (_, i) => {
       const z = (i - 30) / 5;
-      return Math.exp(-(z * z) / 0.5) + lobeFar * Math.exp(-((z - 3) ** 2) / 0.3) + lobeNear * Math.exp(-((z + 3) ** 2) / 0.3);
+      return (
+        Math.exp(-(z * z) / 0.5) +
+        lobeFar * Math.exp(-((z - 3) ** 2) / 0.3) +
+        lobeNear * Math.exp(-((z + 3) ** 2) / 0.3)
+      );
     });
   it("is the far-minus-near lobe ratio, signed by the z direction", () => {
     const p = profile(0.3, 0.02);

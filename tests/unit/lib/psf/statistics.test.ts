@@ -1,14 +1,22 @@
 import * as ss from "simple-statistics";
 import { describe, expect, it } from "vitest";
 import { makeRng, makeSyntheticStack } from "../../../../fixtures/synthetic-stack";
-import { estimateBackground, madSigma, median, normalQuantile, quantile, theilSen } from "../../../../src/lib/psf";
+import {
+  estimateBackground,
+  madSigma,
+  median,
+  normalQuantile,
+  quantile,
+  theilSen,
+} from "../../../../src/lib/psf";
 
 describe("quantile / median / madSigma", () => {
   it("agree with simple-statistics (type-7 quantiles)", () => {
     const rng = makeRng(1);
     const v = Array.from({ length: 257 }, () => rng() * 100 - 20);
     // Source: simple-statistics 7.12.1 (general-purpose npm reference), same definitions.
-    for (const p of [0, 0.05, 0.25, 0.5, 0.75, 0.95, 1]) expect(quantile(v, p)).toBeCloseToAbs(ss.quantile(v, p), 1e-12);
+    for (const p of [0, 0.05, 0.25, 0.5, 0.75, 0.95, 1])
+      expect(quantile(v, p)).toBeCloseToAbs(ss.quantile(v, p), 1e-12);
     expect(median(v)).toBeCloseToAbs(ss.median(v), 1e-12);
     expect(madSigma(v)).toBeCloseToAbs(1.482602218505602 * ss.medianAbsoluteDeviation(v), 1e-9);
   });
@@ -65,7 +73,14 @@ describe("theilSen", () => {
 
 describe("estimateBackground", () => {
   it("uint16 histogram median/MAD equals simple-statistics on all voxels", () => {
-    const s = makeSyntheticStack({ shape: [6, 40, 40], voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 }, beads: [], background: 100, readNoise: 2, seed: 4 });
+    const s = makeSyntheticStack({
+      shape: [6, 40, 40],
+      voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 },
+      beads: [],
+      background: 100,
+      readNoise: 2,
+      seed: 4,
+    });
     const b = estimateBackground(s);
     const arr = Array.from(s.data);
     // Source: simple-statistics median / medianAbsoluteDeviation on the same voxels.
@@ -77,9 +92,20 @@ describe("estimateBackground", () => {
     expect(b.noiseSigma).toBeLessThan(12);
   });
   it("float32 subsample estimate and the floor for a constant image", () => {
-    const s = makeSyntheticStack({ shape: [4, 30, 30], voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 }, beads: [], dtype: "float32", seed: 2 });
+    const s = makeSyntheticStack({
+      shape: [4, 30, 30],
+      voxelSizeUm: { x: 0.1, y: 0.1, z: 0.2 },
+      beads: [],
+      dtype: "float32",
+      seed: 2,
+    });
     expect(estimateBackground(s).method).toBe("subsample");
-    const c = { data: new Uint16Array(1000).fill(7), shape: [10, 10, 10] as [number, number, number], dtype: "uint16" as const, voxelSizeUm: { x: 1, y: 1, z: 1 } };
+    const c = {
+      data: new Uint16Array(1000).fill(7),
+      shape: [10, 10, 10] as [number, number, number],
+      dtype: "uint16" as const,
+      voxelSizeUm: { x: 1, y: 1, z: 1 },
+    };
     const b = estimateBackground(c);
     expect(b.median).toBe(7);
     expect(b.madSigmaRaw).toBe(0);
@@ -87,6 +113,8 @@ describe("estimateBackground", () => {
     expect(b.noiseSigma).toBeCloseToAbs(1 / Math.sqrt(12), 1e-12);
   });
   it("throws TypeError on empty data", () => {
-    expect(() => estimateBackground({ data: new Uint16Array(0), shape: [0, 0, 0], dtype: "uint16", voxelSizeUm: null })).toThrow(TypeError);
+    expect(() =>
+      estimateBackground({ data: new Uint16Array(0), shape: [0, 0, 0], dtype: "uint16", voxelSizeUm: null }),
+    ).toThrow(TypeError);
   });
 });
