@@ -173,3 +173,55 @@ describe("gibsonLanniDepthMetrics: other pairs", () => {
     expect(m.peakRelative).toBeCloseToAbs(1, 1e-6);
   });
 });
+
+describe("gibsonLanniDepthMetrics: layer errors (METHODS §5 related effects)", () => {
+  const fast = { lateral: false, sideLobes: false };
+  it("immersion oil below its design index", () => {
+    const base = {
+      na: 1.4,
+      wavelengthNm: 520,
+      immersionRiDesign: 1.518,
+      sampleRi: 1.518,
+      coverslipRi: 1.518,
+    };
+    // Source: METHODS.md §5 (GL computed here): oil 0.003 below design at NA 1.4, t_i* = 150 µm → peak 0.77 and a 0.64 µm focal shift at the coverslip.
+    const low = gibsonLanniDepthMetrics({ ...base, immersionRi: 1.515 }, 0, fast);
+    expect(low.peakRelative).toBeCloseToAbs(0.77, 0.01);
+    expect(low.nominalFocusUm).toBeCloseToAbs(0.64, 0.01);
+    // Source: METHODS.md §5 and §9.2 (computed here): 0.0056 below (oil at about 37 °C) → 0.53.
+    expect(gibsonLanniDepthMetrics({ ...base, immersionRi: 1.5124 }, 0, fast).peakRelative).toBeCloseToAbs(
+      0.53,
+      0.01,
+    );
+  });
+  it("coverslip thickness errors hurt a water lens, not an oil lens", () => {
+    // Source: METHODS.md §5 (GL computed here): water NA 1.2, bead 10 µm, coverslip 160 µm instead of 170 → peak 0.544.
+    const water = gibsonLanniDepthMetrics(
+      {
+        na: 1.2,
+        wavelengthNm: 520,
+        immersionRi: 1.333,
+        sampleRi: 1.333,
+        coverslipThicknessUm: 160,
+        coverslipThicknessDesignUm: 170,
+      },
+      10,
+      fast,
+    );
+    expect(water.peakRelative).toBeCloseToAbs(0.544, 0.003);
+    // Source: METHODS.md §5 (computed here): an oil lens with a ±10 µm coverslip error loses almost nothing (0.993).
+    const oil = gibsonLanniDepthMetrics(
+      {
+        na: 1.4,
+        wavelengthNm: 520,
+        immersionRi: 1.518,
+        sampleRi: 1.518,
+        coverslipThicknessUm: 180,
+        coverslipThicknessDesignUm: 170,
+      },
+      10,
+      fast,
+    );
+    expect(oil.peakRelative).toBeCloseToAbs(0.993, 0.003);
+  });
+});
