@@ -93,10 +93,19 @@ describe("analyzeStack — known truth with Gaussian beads", () => {
     expect(a.beadCount).toBe(beads.length);
     expect(a.data).toBeInstanceOf(Float32Array);
     expect(a.data.length).toBe(a.shape[0] * a.shape[1] * a.shape[2]);
-    // Source: computed here — trilinear resampling adds ≈ 1/6 voxel² to σ² (σ ≈ 1.6 px → ≈ +3 % FWHM); allow 6 %.
-    expect(a.fwhmXUm! / 0.25).toBeGreaterThan(0.98);
-    expect(a.fwhmXUm! / 0.25).toBeLessThan(1.06);
-    expect(a.fwhmZUm! / 0.7).toBeCloseToAbs(1, 0.05);
+    // Source: computed here — cubic-convolution registration of 12 Gaussian beads (FWHM 0.25 / 0.7 µm) keeps
+    // the averaged widths within 2 % / 3 % of the truth.
+    expect(a.fwhmXUm! / 0.25).toBeCloseToAbs(1, 0.02);
+    expect(a.fwhmYUm! / 0.25).toBeCloseToAbs(1, 0.02);
+    expect(a.fwhmZUm! / 0.7).toBeCloseToAbs(1, 0.03);
+    // Peak of the amplitude-normalised mean sits at the centre voxel and is ≈ 1.
+    const c =
+      a.data[
+        ((a.shape[0] - 1) / 2) * a.shape[1] * a.shape[2] +
+          ((a.shape[1] - 1) / 2) * a.shape[2] +
+          (a.shape[2] - 1) / 2
+      ];
+    expect(c).toBeCloseToAbs(1, 0.05);
   });
 
   it("echoes provenance, reports progress in order, is serialisable and leaves its inputs untouched", () => {
