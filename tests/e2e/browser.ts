@@ -55,7 +55,7 @@ export async function openBrowser(): Promise<Session> {
     problems.push(`request failed: ${req.url()} ${req.failure()?.errorText}`);
   });
   page.on("response", (res) => {
-    if (res.status() >= 500) problems.push(`HTTP ${res.status()}: ${res.url()}`);
+    if (res.status() >= 500 || res.status() === 404) problems.push(`HTTP ${res.status()}: ${res.url()}`);
   });
   return {
     context,

@@ -22,6 +22,9 @@ export default async function DashboardPage() {
           <h1>Dashboard</h1>
           <p className="text-sm text-ink-soft">Every objective, most urgent first.</p>
         </div>
+        <Link href="/measurements/new" className="btn" data-testid="new-measurement">
+          New measurement
+        </Link>
         <div className="flex gap-3 text-sm" aria-label="Status counts">
           {(["out of spec", "overdue", "watch", "in spec", "no data"] as const).map((s) => (
             <span key={s} className="flex items-center gap-1">

@@ -1,0 +1,64 @@
+import type { Metadata } from "next";
+import { forbidden } from "next/navigation";
+import { requirePageActor } from "@/server/auth/current-actor";
+import { can } from "@/server/auth/permissions";
+import { getDb } from "@/server/db/client";
+import { listInstruments, listObjectives } from "@/server/services/instruments";
+import { listMediaForActor } from "@/server/services/media";
+import { CautionNote } from "@/components/caution-note";
+import { NewMeasurementFlow, type ObjectiveOption } from "./_components/new-measurement-flow";
+
+export const metadata: Metadata = { title: "New measurement" };
+
+export default async function NewMeasurementPage() {
+  const { actor } = await requirePageActor();
+  const purposes = (
+    [
+      ["routine", "measurements.routine"],
+      ["baseline", "measurements.routine"],
+      ["sample", "measurements.sample"],
+      ["pre-service", "measurements.service"],
+      ["post-service", "measurements.service"],
+    ] as const
+  )
+    .filter(([, p]) => can(actor, p))
+    .map(([purpose]) => purpose);
+  if (purposes.length === 0) forbidden();
+  const db = getDb();
+  const [objectives, instruments, media] = await Promise.all([
+    listObjectives(db, actor),
+    listInstruments(db, actor),
+    listMediaForActor(db, actor),
+  ]);
+  const options: ObjectiveOption[] = objectives
+    .filter((o) => !o.retired)
+    .map((o) => {
+      const inst = instruments.find((i) => i.id === o.instrumentId);
+      return {
+        id: o.id,
+        name: inst ? `${o.name} — ${inst.name}` : o.name,
+        na: o.na,
+        immersion: o.immersion,
+        designImmersionRi: o.designImmersionRi,
+        modality: inst?.modality ?? "widefield",
+        defaultPinholeAu: inst?.defaultPinholeAu ?? null,
+      };
+    });
+  return (
+    <div className="space-y-6">
+      <div>
+        <h1>New measurement</h1>
+        <p className="text-sm text-ink-soft">
+          Upload a bead z-stack (TIFF, OME-TIFF or ImageJ TIFF), confirm what the file could not tell us, and
+          start the analysis.
+        </p>
+      </div>
+      <CautionNote kind="acquisition" />
+      <NewMeasurementFlow
+        objectives={options}
+        purposes={purposes}
+        media={media.map((m) => ({ id: m.id, name: m.name, ri: m.refractiveIndexD23, kind: m.kind }))}
+      />
+    </div>
+  );
+}

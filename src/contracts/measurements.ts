@@ -1,0 +1,63 @@
+import { z } from "zod";
+import { modalitySchema } from "./instruments";
+
+export const purposeSchema = z.enum(["routine", "baseline", "pre-service", "post-service", "sample"]);
+export type Purpose = z.infer<typeof purposeSchema>;
+
+/** `POST /api/v1/measurements` (DESIGN.md §5). Give a medium or a sample RI, not both. */
+export const createMeasurementSchema = z
+  .object({
+    stackId: z.uuid(),
+    objectiveId: z.uuid(),
+    purpose: purposeSchema,
+    channel: z.number().int().min(0).max(63).default(0),
+    emissionWavelengthNm: z.number().min(250).max(1700),
+    excitationWavelengthNm: z.number().min(250).max(1700).optional(),
+    modality: modalitySchema.optional(),
+    pinholeAu: z.number().positive().max(20).optional(),
+    mediumId: z.string().min(1).max(80).optional(),
+    sampleRi: z.number().min(1).max(2).optional(),
+    temperatureC: z.number().min(-5).max(60).optional(),
+    beadDiameterNm: z.number().positive().max(5000),
+    voxelSizeUm: z
+      .object({
+        x: z.number().positive().max(100),
+        y: z.number().positive().max(100),
+        z: z.number().positive().max(1000),
+      })
+      .optional(),
+    coverslipSlice: z.number().int().min(0).optional(),
+    thresholdK: z.number().min(2).max(50).optional(),
+    serviceVisitId: z.uuid().optional(),
+    acquiredAt: z.iso.datetime({ offset: true }).optional(),
+  })
+  .strict()
+  .refine((m) => !(m.mediumId && m.sampleRi !== undefined), {
+    message: "Give either mediumId or sampleRi, not both.",
+    path: ["sampleRi"],
+  })
+  .refine((m) => m.modality !== "two-photon" || m.excitationWavelengthNm !== undefined, {
+    message: "Two-photon needs the excitation wavelength.",
+    path: ["excitationWavelengthNm"],
+  });
+export type CreateMeasurement = z.infer<typeof createMeasurementSchema>;
+
+export const rerunMeasurementSchema = z
+  .object({
+    thresholdK: z.number().min(2).max(50).optional(),
+    coverslipSlice: z.number().int().min(0).nullable().optional(),
+    excludedBeadIds: z.array(z.number().int().min(0)).max(10000).optional(),
+    beadDiameterNm: z.number().positive().max(5000).optional(),
+  })
+  .strict();
+export type RerunMeasurement = z.infer<typeof rerunMeasurementSchema>;
+
+export const measurementStages = [
+  "queued",
+  "reading",
+  "detecting",
+  "fitting",
+  "modelling",
+  "saving",
+  "done",
+] as const;

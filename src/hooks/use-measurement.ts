@@ -1,0 +1,141 @@
+"use client";
+import { useQuery } from "@tanstack/react-query";
+
+export const measurementKeys = {
+  one: (id: string) => ["measurement", id] as const,
+  beads: (id: string) => ["measurement", id, "beads"] as const,
+};
+
+export interface MeasurementView {
+  id: string;
+  purpose: string;
+  status: "queued" | "running" | "done" | "failed" | "cancelled";
+  progress: { stage: string; fraction: number };
+  error: { code: string; message: string | null } | null;
+  version: number;
+  parameters: Record<string, unknown> & {
+    objectiveName: string;
+    mediumName: string;
+    sampleRi: number;
+    na: number;
+    immersionRi: number;
+    modality: string;
+    emissionWavelengthNm: number;
+  };
+  acquiredAt: string;
+  finishedAt: string | null;
+  engineVersion: string | null;
+  formulaId: string | null;
+  summary: MeasurementSummary | null;
+}
+
+export interface WidthStats {
+  count: number;
+  medianUm: number | null;
+  q1Um: number | null;
+  q3Um: number | null;
+  minUm: number | null;
+  maxUm: number | null;
+  medianCorrectedUm: number | null;
+}
+
+export interface MeasurementSummary {
+  beads: { found: number; used: number; rejected: number; rejectedByReason: Record<string, number> };
+  widths: Record<
+    "fwhmX" | "fwhmY" | "fwhmZ" | "fwhmZDirect" | "fwhm3dX" | "fwhm3dY" | "fwhm3dZ",
+    WidthStats
+  > & {
+    medianAxialAsymmetry: number | null;
+    medianLateralAsymmetry: number | null;
+  };
+  theory: { lateralNm: number; axialNm: number; formulaId: string; formulaVersion: string; notes: string[] };
+  ratios: { lateral: number | null; axial: number | null };
+  headline: { lateralFwhmUm: number | null; axialFwhmUm: number | null; basis: string };
+  verdict: { level: "pass" | "fail" | "check" | "insufficient"; headline: string; evidence: string[] };
+  sampling: { verdict: string; message: string };
+  voxelSizeUm: { x: number; y: number; z: number };
+  voxelSizeSource: string;
+  depthModel: { model: string; mismatch: boolean };
+  sampleRi: number;
+  mediumName: string;
+  prediction: Array<{
+    depthUm: number;
+    lateralFwhmUm: number;
+    axialFwhmUm: number;
+    peakRelative: number;
+    focalShiftFactor: number;
+  }>;
+  depthProfile: Array<{
+    depthMedianUm: number;
+    count: number;
+    fwhmX: { medianUm: number | null; q1Um: number | null; q3Um: number | null };
+    fwhmY: { medianUm: number | null; q1Um: number | null; q3Um: number | null };
+    fwhmZ: { medianUm: number | null; q1Um: number | null; q3Um: number | null };
+  }>;
+  effectiveRi:
+    | {
+        sampleRi: number;
+        interval95: [number, number];
+        consistentWithDeclared: boolean;
+        message: string;
+        rows: Array<{ depthUm: number; actualDepthUm: number; predictedAxialFwhmUm: number }>;
+        widefieldScale: number;
+      }
+    | { sampleRi: null; reason: string };
+  averagedPsf: {
+    shape: [number, number, number];
+    voxelSizeUm: { x: number; y: number; z: number };
+    beadCount: number;
+    fwhmXUm: number | null;
+    fwhmYUm: number | null;
+    fwhmZUm: number | null;
+    dataBase64: string;
+  } | null;
+  metadata: { format: string; warnings: Array<{ code: string; message: string }>; compression: string };
+  provenance: { engineVersion: string; parameters: Record<string, unknown>; stack: Record<string, unknown> };
+}
+
+export interface PublicBead {
+  id: number;
+  x_px: number;
+  y_px: number;
+  z_px: number;
+  depth_um: number | null;
+  fwhm_x_um: number | null;
+  fwhm_y_um: number | null;
+  fwhm_z_um: number | null;
+  fwhm_z_direct_um: number | null;
+  fwhm3d_z_um: number | null;
+  amplitude: number | null;
+  snr: number | null;
+  r2: number | null;
+  axial_asymmetry: number | null;
+  included: boolean;
+  reject_reason: string | null;
+}
+
+async function getJson<T>(url: string): Promise<T> {
+  const res = await fetch(url, { headers: { Accept: "application/json" } });
+  const json = await res.json().catch(() => null);
+  if (!res.ok)
+    throw new Error((json as { error?: { message?: string } })?.error?.message ?? `HTTP ${res.status}`);
+  return json as T;
+}
+
+/** Polls every second while the analysis is queued or running, then stops. */
+export function useMeasurement(id: string) {
+  return useQuery({
+    queryKey: measurementKeys.one(id),
+    queryFn: () => getJson<MeasurementView>(`/api/v1/measurements/${id}`),
+    refetchInterval: (q) =>
+      q.state.data && (q.state.data.status === "queued" || q.state.data.status === "running") ? 1000 : false,
+  });
+}
+
+export function useBeads(id: string, enabled: boolean) {
+  return useQuery({
+    queryKey: measurementKeys.beads(id),
+    queryFn: () => getJson<{ beads: PublicBead[] }>(`/api/v1/measurements/${id}/beads`).then((r) => r.beads),
+    enabled,
+  });
+}

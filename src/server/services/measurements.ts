@@ -1,0 +1,290 @@
+/**
+ * Measurements: create (checks the role for the purpose, resolves the medium's RI,
+ * queues the analysis), read with progress and results, cancel, re-run as a new
+ * version, and the bead table.
+ */
+import { and, asc, eq } from "drizzle-orm";
+import type { Modality } from "../../lib/optics";
+import type { MeasurementParameters } from "../../lib/psf/run-measurement-pipeline";
+import type { CreateMeasurement, RerunMeasurement } from "../../contracts/measurements";
+import type { Db } from "../db/client";
+import { beadResults, instruments, measurements, objectives, type Measurement } from "../db/schema";
+import { insertAuditEntry } from "../db/queries/audit";
+import { listAssignedInstrumentIds } from "../db/queries/service-visits";
+import { requirePermission, type Actor, type Permission } from "../auth/permissions";
+import { AppError, notFound } from "../http/errors";
+import { enqueueAnalysis } from "../queue/boss";
+import { getStackRow } from "./stacks";
+import { getObjective } from "./instruments";
+import { resolveMediumRi } from "./media";
+
+/** Everything the worker needs, stored on the row (provenance and re-runs). */
+export interface StoredParameters extends MeasurementParameters {
+  mediumId: string | null;
+  mediumName: string;
+  temperatureC: number | null;
+  objectiveName: string;
+  limits: { lateral: number; axial: number };
+}
+
+const PURPOSE_PERMISSION: Record<CreateMeasurement["purpose"], Permission> = {
+  routine: "measurements.routine",
+  baseline: "measurements.routine",
+  "pre-service": "measurements.service",
+  "post-service": "measurements.service",
+  sample: "measurements.sample",
+};
+
+async function resolveSampleRi(db: Db, actor: Actor, input: CreateMeasurement, immersionRi: number) {
+  if (input.sampleRi === undefined && !input.mediumId) {
+    // A bead slide checked by the facility is assumed matched to the lens (common practice).
+    return { sampleRi: immersionRi, mediumId: null, mediumName: "matched to the immersion medium" };
+  }
+  return resolveMediumRi(db, actor, {
+    mediumId: input.mediumId,
+    sampleRi: input.sampleRi,
+    wavelengthNm: input.emissionWavelengthNm,
+    temperatureC: input.temperatureC,
+  });
+}
+
+export async function createMeasurement(db: Db, actor: Actor, input: CreateMeasurement) {
+  const grant = requirePermission(actor, PURPOSE_PERMISSION[input.purpose]);
+  const stack = await getStackRow(db, actor, input.stackId);
+  const objective = await getObjective(db, actor, input.objectiveId);
+  if (grant === "own" && stack.uploadedBy !== actor.userId) {
+    throw new AppError("forbidden", "Researchers run sample measurements on their own stacks only.");
+  }
+  if (grant === "assigned") {
+    const assigned = await listAssignedInstrumentIds(db, {
+      facilityId: actor.facilityId,
+      engineerId: actor.userId,
+      at: new Date(),
+    });
+    if (!objective.instrumentId || !assigned.includes(objective.instrumentId)) {
+      throw new AppError(
+        "forbidden",
+        "This objective is not on an instrument of your current service visit.",
+      );
+    }
+  }
+  if (input.channel >= stack.channels) {
+    throw new AppError(
+      "unprocessable",
+      `The stack has ${stack.channels} channel(s); channel ${input.channel} does not exist (0-based).`,
+    );
+  }
+  if (input.coverslipSlice !== undefined && input.coverslipSlice >= stack.slices) {
+    throw new AppError(
+      "unprocessable",
+      `The stack has ${stack.slices} slices; coverslip slice ${input.coverslipSlice} is outside it.`,
+    );
+  }
+  const voxel =
+    input.voxelSizeUm ??
+    (stack.voxelXUm && stack.voxelYUm && stack.voxelZUm
+      ? { x: stack.voxelXUm, y: stack.voxelYUm, z: stack.voxelZUm }
+      : null);
+  if (!voxel) {
+    throw new AppError(
+      "unprocessable",
+      "The stack has no voxel size in its metadata: send voxelSizeUm {x, y, z} in µm.",
+    );
+  }
+  let modality: Modality | undefined = input.modality;
+  if (!modality && objective.instrumentId) {
+    const [inst] = await db
+      .select()
+      .from(instruments)
+      .where(eq(instruments.id, objective.instrumentId))
+      .limit(1);
+    modality = inst?.modality;
+  }
+  if (!modality)
+    throw new AppError("unprocessable", "Give the modality: the objective is not mounted on an instrument.");
+  const medium = await resolveSampleRi(db, actor, input, objective.designImmersionRi);
+
+  const parameters: StoredParameters = {
+    channel: input.channel,
+    modality,
+    na: objective.na,
+    immersionRi: objective.designImmersionRi,
+    sampleRi: medium.sampleRi,
+    emissionWavelengthNm: input.emissionWavelengthNm,
+    excitationWavelengthNm: input.excitationWavelengthNm,
+    pinholeAu: input.pinholeAu,
+    beadDiameterNm: input.beadDiameterNm,
+    voxelSizeUm: input.voxelSizeUm,
+    coverslipSlice: input.coverslipSlice,
+    designCoverslipUm: objective.designCoverslipUm,
+    thresholdK: input.thresholdK,
+    mediumId: medium.mediumId,
+    mediumName: medium.mediumName,
+    temperatureC: input.temperatureC ?? null,
+    objectiveName: objective.name,
+    limits: { lateral: objective.lateralRatioLimit, axial: objective.axialRatioLimit },
+  };
+  const row = await db.transaction(async (tx) => {
+    const [m] = await tx
+      .insert(measurements)
+      .values({
+        facilityId: actor.facilityId,
+        stackId: stack.id,
+        objectiveId: objective.id,
+        createdBy: actor.userId,
+        purpose: input.purpose,
+        channel: input.channel,
+        modality,
+        parameters,
+        serviceVisitId: input.serviceVisitId ?? null,
+        acquiredAt: input.acquiredAt ? new Date(input.acquiredAt) : stack.createdAt,
+      })
+      .returning();
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "measurement.create",
+      targetType: "measurement",
+      targetId: m!.id,
+    });
+    return m!;
+  });
+  await queueOrFail(db, row.id);
+  return { id: row.id, status: row.status };
+}
+
+async function queueOrFail(db: Db, id: string) {
+  try {
+    await enqueueAnalysis(id);
+  } catch (err) {
+    await db
+      .update(measurements)
+      .set({
+        status: "failed",
+        errorCode: "queue_unavailable",
+        errorMessage: "The analysis queue is unavailable. Try again.",
+      })
+      .where(eq(measurements.id, id));
+    throw new AppError("unavailable", "The analysis queue is unavailable right now. Try again in a moment.", {
+      cause: err,
+    });
+  }
+}
+
+export async function getMeasurementRow(db: Db, actor: Actor, id: string): Promise<Measurement> {
+  const [row] = await db
+    .select()
+    .from(measurements)
+    .where(and(eq(measurements.facilityId, actor.facilityId), eq(measurements.id, id)))
+    .limit(1);
+  if (!row) throw notFound("Measurement");
+  if (actor.role === "researcher" && row.purpose === "sample" && row.createdBy !== actor.userId)
+    throw notFound("Measurement");
+  if (actor.role === "engineer") {
+    const [obj] = await db.select().from(objectives).where(eq(objectives.id, row.objectiveId)).limit(1);
+    const assigned = await listAssignedInstrumentIds(db, {
+      facilityId: actor.facilityId,
+      engineerId: actor.userId,
+      at: new Date(),
+    });
+    if (!obj?.instrumentId || !assigned.includes(obj.instrumentId)) throw notFound("Measurement");
+  }
+  return row;
+}
+
+export async function getMeasurement(db: Db, actor: Actor, id: string) {
+  const row = await getMeasurementRow(db, actor, id);
+  return {
+    id: row.id,
+    stackId: row.stackId,
+    objectiveId: row.objectiveId,
+    purpose: row.purpose,
+    status: row.status,
+    progress: { stage: row.stage, fraction: row.fraction },
+    error: row.errorCode ? { code: row.errorCode, message: row.errorMessage } : null,
+    version: row.version,
+    parentId: row.parentId,
+    parameters: row.parameters as StoredParameters,
+    acquiredAt: row.acquiredAt.toISOString(),
+    createdAt: row.createdAt.toISOString(),
+    finishedAt: row.finishedAt?.toISOString() ?? null,
+    engineVersion: row.engineVersion,
+    formulaId: row.formulaId,
+    summary: row.status === "done" ? row.summary : null,
+  };
+}
+
+export async function listBeads(db: Db, actor: Actor, id: string) {
+  await getMeasurementRow(db, actor, id);
+  return db
+    .select()
+    .from(beadResults)
+    .where(eq(beadResults.measurementId, id))
+    .orderBy(asc(beadResults.beadIndex));
+}
+
+export async function cancelMeasurement(db: Db, actor: Actor, id: string) {
+  const row = await getMeasurementRow(db, actor, id);
+  requirePermission(actor, PURPOSE_PERMISSION[row.purpose]);
+  if (row.status !== "queued" && row.status !== "running") {
+    throw new AppError("conflict", `The measurement is already ${row.status}.`);
+  }
+  await db
+    .update(measurements)
+    .set({ status: "cancelled", stage: "cancelled", finishedAt: new Date() })
+    .where(eq(measurements.id, id));
+  return { id, status: "cancelled" as const };
+}
+
+/** Re-run with changed parameters: a new version row; the old one is kept untouched. */
+export async function rerunMeasurement(db: Db, actor: Actor, id: string, input: RerunMeasurement) {
+  const row = await getMeasurementRow(db, actor, id);
+  requirePermission(actor, PURPOSE_PERMISSION[row.purpose]);
+  if (row.status === "queued" || row.status === "running") {
+    throw new AppError("conflict", "Wait for the current run to finish or cancel it first.");
+  }
+  const old = row.parameters as StoredParameters;
+  const parameters: StoredParameters = {
+    ...old,
+    thresholdK: input.thresholdK ?? old.thresholdK,
+    coverslipSlice: input.coverslipSlice === null ? undefined : (input.coverslipSlice ?? old.coverslipSlice),
+    excludedBeadIds: input.excludedBeadIds ?? old.excludedBeadIds,
+    beadDiameterNm: input.beadDiameterNm ?? old.beadDiameterNm,
+  };
+  const rootId = row.parentId ?? row.id;
+  const created = await db.transaction(async (tx) => {
+    const versions = await tx
+      .select({ v: measurements.version })
+      .from(measurements)
+      .where(eq(measurements.parentId, rootId));
+    const next = Math.max(row.version, ...versions.map((v) => v.v)) + 1;
+    const [m] = await tx
+      .insert(measurements)
+      .values({
+        facilityId: row.facilityId,
+        stackId: row.stackId,
+        objectiveId: row.objectiveId,
+        createdBy: actor.userId,
+        purpose: row.purpose,
+        channel: row.channel,
+        modality: row.modality,
+        parameters,
+        version: next,
+        parentId: rootId,
+        serviceVisitId: row.serviceVisitId,
+        acquiredAt: row.acquiredAt,
+      })
+      .returning();
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "measurement.rerun",
+      targetType: "measurement",
+      targetId: m!.id,
+      details: { from: id, changes: input },
+    });
+    return m!;
+  });
+  await queueOrFail(db, created.id);
+  return { id: created.id, status: created.status, version: created.version };
+}

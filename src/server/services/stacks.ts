@@ -1,0 +1,191 @@
+/**
+ * Registering an uploaded TIFF as a stack: inspect it (refusing bad files with a
+ * specific 4xx), hash it, recognise a duplicate within the facility, store the
+ * bytes, and only then commit the row. A failure at any step leaves no row and
+ * no stored object behind.
+ */
+import { createHash } from "node:crypto";
+import { readFile, stat } from "node:fs/promises";
+import { and, desc, eq } from "drizzle-orm";
+import { inspectTiff, TiffInputError, voxelSizeFromMetadata, type TiffMetadata } from "../../lib/tiff";
+import type { StackDto, StackUploadMeta } from "../../contracts/stacks";
+import { getEnv } from "../../env";
+import type { Db } from "../db/client";
+import { measurements, stacks, type Stack } from "../db/schema";
+import { insertAuditEntry } from "../db/queries/audit";
+import { requirePermission, type Actor } from "../auth/permissions";
+import { AppError, notFound } from "../http/errors";
+import { stackKey, type ObjectStorage } from "../storage/storage";
+
+export function toStackDto(row: Stack, duplicate?: boolean): StackDto {
+  return {
+    id: row.id,
+    fileName: row.fileName,
+    sha256: row.sha256,
+    sizeBytes: row.sizeBytes,
+    width: row.width,
+    height: row.height,
+    slices: row.slices,
+    channels: row.channels,
+    frames: row.frames,
+    dtype: row.dtype,
+    voxelSizeUm:
+      row.voxelXUm != null && row.voxelYUm != null && row.voxelZUm != null
+        ? { x: row.voxelXUm, y: row.voxelYUm, z: row.voxelZUm }
+        : null,
+    metadataSource: row.metadataSource,
+    createdAt: row.createdAt.toISOString(),
+    ...(duplicate === undefined ? {} : { duplicate }),
+  };
+}
+
+/** Map the reader's error codes onto HTTP statuses with the reader's own message. */
+export function tiffErrorToAppError(err: TiffInputError): AppError {
+  const code =
+    err.code === "not_tiff"
+      ? "unsupported_media_type"
+      : err.code === "too_large"
+        ? "too_large"
+        : "unprocessable";
+  return new AppError(code, err.message, { details: { reason: err.code } });
+}
+
+export async function inspectStackBytes(bytes: Uint8Array): Promise<TiffMetadata> {
+  try {
+    return await inspectTiff(bytes, { minSlices: 2, maxVoxels: getEnv().MAX_STACK_VOXELS });
+  } catch (err) {
+    if (err instanceof TiffInputError) throw tiffErrorToAppError(err);
+    throw new AppError("unprocessable", "The file could not be read as a TIFF stack.", { cause: err });
+  }
+}
+
+export async function registerStackFromFile(
+  db: Db,
+  storage: ObjectStorage,
+  actor: Actor,
+  input: { filePath: string; fileName: string; meta?: StackUploadMeta },
+): Promise<StackDto> {
+  requirePermission(actor, "stacks.upload");
+  const { size } = await stat(input.filePath);
+  if (size === 0) throw new AppError("unprocessable", "The file is empty.");
+  if (size > getEnv().MAX_UPLOAD_BYTES) {
+    throw new AppError(
+      "too_large",
+      `The file is ${size} bytes; the limit is ${getEnv().MAX_UPLOAD_BYTES} bytes.`,
+    );
+  }
+  const buf = await readFile(input.filePath);
+  const bytes = new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength);
+  const metadata = await inspectStackBytes(bytes);
+  const sha256 = createHash("sha256").update(bytes).digest("hex");
+
+  const [existing] = await db
+    .select()
+    .from(stacks)
+    .where(and(eq(stacks.facilityId, actor.facilityId), eq(stacks.sha256, sha256)))
+    .limit(1);
+  if (existing) return toStackDto(existing, true);
+
+  const fileVoxel = voxelSizeFromMetadata(metadata);
+  const voxel = input.meta?.voxelSizeUm ?? fileVoxel;
+  const source = input.meta?.voxelSizeUm ? "user" : fileVoxel ? metadata.format : "none";
+  const key = stackKey(actor.facilityId, sha256);
+  await storage.putFile(key, input.filePath);
+  try {
+    const row = await db.transaction(async (tx) => {
+      const [inserted] = await tx
+        .insert(stacks)
+        .values({
+          facilityId: actor.facilityId,
+          uploadedBy: actor.userId,
+          fileName: input.fileName.slice(0, 255),
+          storageKey: key,
+          sha256,
+          sizeBytes: size,
+          width: metadata.width,
+          height: metadata.height,
+          slices: metadata.slices.value,
+          channels: metadata.channels.value,
+          frames: metadata.frames.value,
+          dtype: metadata.dtype,
+          voxelXUm: voxel?.x ?? null,
+          voxelYUm: voxel?.y ?? null,
+          voxelZUm: voxel?.z ?? null,
+          sampleType: input.meta?.sampleType ?? null,
+          metadata: metadata as unknown as Record<string, unknown>,
+          metadataSource: source,
+        })
+        .onConflictDoNothing({ target: [stacks.facilityId, stacks.sha256] })
+        .returning();
+      if (!inserted) return null; // a concurrent upload of the same bytes won the race
+      await insertAuditEntry(tx, {
+        facilityId: actor.facilityId,
+        userId: actor.userId,
+        action: "stack.upload",
+        targetType: "stack",
+        targetId: inserted.id,
+        details: { fileName: inserted.fileName, sizeBytes: size },
+      });
+      return inserted;
+    });
+    if (row) return toStackDto(row, false);
+    const [winner] = await db
+      .select()
+      .from(stacks)
+      .where(and(eq(stacks.facilityId, actor.facilityId), eq(stacks.sha256, sha256)));
+    return toStackDto(winner!, true);
+  } catch (err) {
+    // The object under this key is ours alone (no row references it): remove it.
+    await storage.delete(key).catch(() => {});
+    throw err;
+  }
+}
+
+export async function listStacks(db: Db, actor: Actor) {
+  requirePermission(actor, "stacks.upload");
+  const where =
+    actor.role === "researcher"
+      ? and(eq(stacks.facilityId, actor.facilityId), eq(stacks.uploadedBy, actor.userId))
+      : eq(stacks.facilityId, actor.facilityId);
+  const rows = await db.select().from(stacks).where(where).orderBy(desc(stacks.createdAt)).limit(200);
+  return rows.map((r) => toStackDto(r));
+}
+
+export async function getStackRow(db: Db, actor: Actor, id: string): Promise<Stack> {
+  const [row] = await db
+    .select()
+    .from(stacks)
+    .where(and(eq(stacks.facilityId, actor.facilityId), eq(stacks.id, id)))
+    .limit(1);
+  if (!row) throw notFound("Stack");
+  if (actor.role === "researcher" && row.uploadedBy !== actor.userId) throw notFound("Stack");
+  return row;
+}
+
+export async function getStack(db: Db, actor: Actor, id: string) {
+  const row = await getStackRow(db, actor, id);
+  return { ...toStackDto(row), metadata: row.metadata as TiffMetadata | null };
+}
+
+/** Delete a stack and its bytes; refused while a measurement uses it. */
+export async function deleteStack(db: Db, storage: ObjectStorage, actor: Actor, id: string) {
+  requirePermission(actor, "stacks.delete");
+  const row = await getStackRow(db, actor, id);
+  await db.transaction(async (tx) => {
+    const [used] = await tx
+      .select({ id: measurements.id })
+      .from(measurements)
+      .where(eq(measurements.stackId, id))
+      .limit(1);
+    if (used) throw new AppError("conflict", "This stack is used by a measurement and cannot be deleted.");
+    await tx.delete(stacks).where(eq(stacks.id, id));
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "stack.delete",
+      targetType: "stack",
+      targetId: id,
+    });
+  });
+  await storage.delete(row.storageKey).catch(() => {});
+}

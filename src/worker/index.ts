@@ -1,0 +1,51 @@
+/**
+ * The one worker entry: validated env, the shared pg pool, the pg-boss consumer
+ * for analyses, periodic clean-up of abandoned uploads, and a graceful shutdown.
+ * Start it beside the web app (`npm start`) or alone (`npm run worker`) on any
+ * machine that reaches the same PostgreSQL and object store.
+ */
+import { getEnv } from "../env";
+import { closeDb } from "../server/db/client";
+import { ANALYZE_QUEUE, getBoss, stopBoss } from "../server/queue/boss";
+import { analyzeMeasurement } from "./handlers/analyze-measurement";
+import { cleanUpAbandonedUploads } from "./handlers/clean-up-uploads";
+
+async function main() {
+  getEnv(); // fail at boot on a bad environment
+  const boss = await getBoss();
+  await boss.work(
+    ANALYZE_QUEUE,
+    { pollingIntervalSeconds: 0.5, batchSize: 1, includeMetadata: true },
+    async (jobs) => {
+      for (const job of jobs) {
+        await analyzeMeasurement(job.data, { retryCount: job.retryCount, retryLimit: job.retryLimit });
+      }
+    },
+  );
+  const cleanup = setInterval(() => void cleanUpAbandonedUploads().catch(() => {}), 3600_000);
+  void cleanUpAbandonedUploads().catch(() => {});
+  console.log("[worker] ready: waiting for measurements");
+
+  let stopping = false;
+  const stop = async () => {
+    if (stopping) return;
+    stopping = true;
+    clearInterval(cleanup);
+    console.log("[worker] stopping…");
+    await stopBoss().catch(() => {});
+    await closeDb().catch(() => {});
+    process.exit(0);
+  };
+  process.on("SIGINT", stop);
+  process.on("SIGTERM", stop);
+}
+
+process.on("unhandledRejection", (err) => {
+  // Never let one bad job take the worker down.
+  console.error("[worker] unhandled rejection:", err instanceof Error ? err.message : err);
+});
+
+main().catch((err) => {
+  console.error("[worker] could not start:", err instanceof Error ? err.message : err);
+  process.exit(1);
+});
