@@ -57,7 +57,7 @@ export interface BeadResult {
   rotation3dRad: number | null;
   /** Peak height above background (counts; median of the three 1D fits). */
   amplitude: number | null;
-  /** Local background (counts; from the 3D fit, else the median of the 1D fit offsets). */
+  /** Local background (counts): mean offset of the x and y 1D fits (their windows reach the background). */
   background: number | null;
   /** amplitude / stack noise σ (robust MAD estimate). */
   snr: number | null;
@@ -278,7 +278,8 @@ export interface AnalyzeStackOptions {
   expectedFwhmUm: { lateral: number; axial: number };
   /** Detection threshold in units of the smoothed-image noise σ above the background. @default 6 */
   thresholdK?: number;
-  /** Minimum separation of two detections (µm): lateral, axial. Closer maxima are merged (the brighter kept). @default { lateral: 2·FWHM_lat, axial: 4·FWHM_ax } (a number sets the lateral value) */
+  /** Minimum separation of two detections (µm): lateral, axial. Closer maxima are merged (the brighter kept). @default { lateral: 2·FWHM_lat, axial: 4·FWHM_ax } (a number sets the lateral value). Dimmer on-axis maxima up to
+   * 8·FWHM_ax away (< 0.6 of the brighter) are merged too: side lobes of depth-aberrated PSFs (METHODS §8). */
   minSeparationUm?: number | { lateral: number; axial: number };
   /** Maxima dimmer than this fraction of a brighter one inside its exclusion ellipsoid are merged into it (rings, lobes). @default 0.25 */
   secondaryFraction?: number;

@@ -28,7 +28,8 @@ import { summarizeBeads } from "./summarize-beads";
  * 2. detection on the lightly smoothed stack (σ = ½ the expected PSF σ per axis, clamped to
  *    0.5–1 voxel), threshold background + k·σ_smoothed, merge within `minSeparationUm`, and merge maxima
  *    dimmer than `secondaryFraction` × a brighter one within max(exclusion, 6) expected FWHM
- *    laterally and axially (Airy/defocus rings, side lobes);
+ *    laterally and axially (Airy/defocus rings), and on-axis maxima within 8 expected axial FWHM
+ *    dimmer than 0.6 × a brighter one (side lobes, METHODS §8 up to ≈ 0.4 of the peak);
  * 3. per bead (`measureBead`); reasons, first applicable wins: `edge` (fit window leaves the stack),
  *    `saturated` (a voxel ≥ ceiling near the peak), `neighbour` (another detection inside the
  *    ellipsoid exclusionFactor·expected FWHM), `low_snr` (amplitude/σ < snrFloor), `fit_failed`,
@@ -60,6 +61,8 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
     thresholdK: o.thresholdK,
     minSeparationUm: o.minSeparationUm,
     secondaryFraction: o.secondaryFraction,
+    // Side lobes of a PSF broadened ≈ 2× by depth aberration lie up to ±4 of its FWHM away: 8 matched FWHM.
+    axialLobe: { axialUm: 8 * o.expectedFwhmUm.axial, fraction: 0.6 },
     // Side lobes of a depth-aberrated PSF reach several matched axial FWHM from the peak (METHODS §8), and the
     // defocus rings in those lobe planes ≈ 4 lateral FWHM off axis (seen on GL renders, oil → water 10 µm), hence ≥ 6.
     secondaryZoneUm: {

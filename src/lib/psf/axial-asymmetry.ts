@@ -20,8 +20,8 @@ export interface AxialAsymmetry {
  * @param farIsIncreasing - true when increasing index goes away from the coverslip
  * @returns side-lobe ratio (primary), skewness and energy ratio (secondary)
  *
- * Notes: the on-axis profile is smoothed with a [1 2 1]/4 kernel; on each side the central
- * lobe ends at the first local minimum walking out from the peak, and the strongest value
+ * Notes: the on-axis profile is smoothed with a [1 2 1]/4 kernel; the peak is the local maximum
+ * reached by climbing from `peakIndex`; on each side the central lobe ends at the first local minimum walking out from the peak, and the strongest value
  * beyond it (clipped at 0) is that side's lobe. The window given should span ±4 axial FWHM.
  * Skewness of a fixed window is fragile (its sign can flip with depth), so it is secondary.
  * References: METHODS.md §8 ("axial side-lobe ratio … primary metric"; skewness secondary).
@@ -42,8 +42,16 @@ export function axialAsymmetry(
     const c = onAxis[Math.min(n - 1, i + 1)];
     sm[i] = 0.25 * a + 0.5 * onAxis[i] + 0.25 * c;
   }
-  const ip = Math.min(n - 1, Math.max(0, Math.round(peakIndex)));
-  const peak = Math.max(onAxis[ip], sm[ip]);
+  let ip = Math.min(n - 1, Math.max(0, Math.round(peakIndex)));
+  // Climb to the maximum of the lobe holding peakIndex: a fitted centre can sit on the flank of a
+  // skewed central lobe, and walking outward from there would count the main peak as a side lobe.
+  for (;;) {
+    if (ip > 0 && sm[ip - 1] > sm[ip]) ip--;
+    else if (ip < n - 1 && sm[ip + 1] > sm[ip]) ip++;
+    else break;
+  }
+  // Peak and lobes both from the smoothed profile, so the smoothing does not bias their ratio.
+  const peak = sm[ip];
   let lobeUp = 0;
   let i = ip;
   while (i < n - 1 && sm[i + 1] <= sm[i]) i++;

@@ -20,6 +20,12 @@ export interface DetectBeadsOptions {
    */
   secondaryFraction?: number;
   secondaryZoneUm?: { lateral: number; axial: number };
+  /**
+   * Axial side-lobe rule: a maximum within `minSeparationUm.lateral` laterally and `axialUm` axially
+   * of a brighter kept one, and dimmer than `fraction` × its height, is merged (side lobes of aberrated
+   * PSFs reach ≈ 0.4 of the peak, METHODS §8). Not applied when absent.
+   */
+  axialLobe?: { axialUm: number; fraction: number };
   /** Stop collecting candidates beyond this many (protects memory on pathological input). @default 200000 */
   maxCandidates?: number;
   onProgress?: (fraction: number) => void;
@@ -81,6 +87,7 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
     onProgress,
     secondaryFraction = 0.25,
     secondaryZoneUm,
+    axialLobe,
   } = options;
   if (!stack.voxelSizeUm) throw new TypeError("detectBeads: stack.voxelSizeUm is required");
   const { x: vx, y: vy, z: vz } = stack.voxelSizeUm;
@@ -226,7 +233,12 @@ export function detectBeads(stack: Stack, options: DetectBeadsOptions): DetectBe
       const dx = (k.x - x) * vx;
       const dy = (k.y - y) * vy;
       const dz = (k.z - z) * vz;
-      if (dx * dx + dy * dy < lat2 && Math.abs(dz) < minSeparationUm.axial) {
+      const r2 = dx * dx + dy * dy;
+      if (r2 < lat2 && Math.abs(dz) < minSeparationUm.axial) {
+        clash = true;
+        break;
+      }
+      if (axialLobe && r2 < lat2 && Math.abs(dz) < axialLobe.axialUm && h < axialLobe.fraction * k.height) {
         clash = true;
         break;
       }

@@ -81,7 +81,7 @@ const fin = (v: number): number | null => (Number.isFinite(v) ? v : null);
  * Measure one bead around a detected position: 1D Gaussian + offset fits of the x, y, z
  * profiles through the refined centre, the direct axial half-maximum width, a 3D Gaussian
  * fit, shape figures (lateral asymmetry, axial side-lobe ratio, skewness, energy ratio,
- * centroid drift), peak and integrated intensity, and the edge/saturation flags.
+ * centroid drift), peak and integrated intensity, and the edge/saturation flags. Local background = mean offset of the x and y fits.
  *
  * @param stack - shape [z, y, x] with voxel size (not mutated)
  * @param position - detected centre in voxels (sub-voxel)
@@ -243,7 +243,10 @@ export function measureBead(
   out.r2Y = fin(fy.r2);
   out.r2Z = fin(fz.r2);
   out.amplitude = fin(median([fx.amplitude, fy.amplitude, fz.amplitude]));
-  let bg = fin(median([fx.background, fy.background, fz.background])) ?? stackBackground;
+  // Lateral fit offsets: their ±2 FWHM windows reach the background; the axial offset can sit on side
+  // lobes and the 3D offset is pulled down by a non-separable (aberrated) PSF.
+  const bgLat = 0.5 * (fx.background + fy.background);
+  const bg = Number.isFinite(bgLat) ? bgLat : stackBackground;
   out.snr = out.amplitude !== null && noiseSigma > 0 ? out.amplitude / noiseSigma : null;
   if (out.fwhmXUm !== null && out.fwhmYUm !== null && out.fwhmXUm > 0 && out.fwhmYUm > 0)
     out.lateralAsymmetry = Math.min(out.fwhmXUm, out.fwhmYUm) / Math.max(out.fwhmXUm, out.fwhmYUm);
@@ -298,7 +301,6 @@ export function measureBead(
       out.fwhm3dZUncertaintyUm = fin(FWHM_PER_SIGMA * g.sigmaZSe);
       out.rotation3dRad = g.theta;
       out.r23d = fin(g.r2);
-      if (Number.isFinite(g.background) && g.r2 > 0.5) bg = g.background;
     }
   }
   out.background = bg;

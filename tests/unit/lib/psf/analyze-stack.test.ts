@@ -10,7 +10,7 @@ function scatteredBeads(
   n: number,
   seed: number,
   shape: [number, number, number],
-  amp = [600, 2000],
+  amp = [900, 1600],
 ): SyntheticBead[] {
   const rng = makeRng(seed);
   const out: SyntheticBead[] = [];
@@ -49,7 +49,8 @@ describe("analyzeStack — known truth with Gaussian beads", () => {
   it("finds every bead, includes them, and recovers the widths", () => {
     expect(r.summary.found).toBe(beads.length);
     expect(r.summary.used).toBe(beads.length);
-    // Source: computed here — Gaussian PSF of known FWHM 0.25 / 0.7 µm (fixture default), SNR ≈ 60–200;
+    // Source: computed here — Gaussian PSF of known FWHM 0.25 / 0.7 µm (fixture default), SNR ≈ 90–160
+    // (amplitudes ±25 %, like a monodisperse bead population: the aggregate rule compares integrated intensities);
     // median of 12 beads within 2 % (lateral) and 3 % (axial).
     expect(r.summary.fwhmX.medianUm! / 0.25).toBeCloseToAbs(1, 0.02);
     expect(r.summary.fwhmY.medianUm! / 0.25).toBeCloseToAbs(1, 0.02);
@@ -71,7 +72,8 @@ describe("analyzeStack — known truth with Gaussian beads", () => {
       expect(Math.abs(t.x - b.xPx) * VOXEL.x).toBeLessThan(0.02);
       expect(Math.abs(t.z - b.zPx) * VOXEL.z).toBeLessThan(0.05);
       expect(b.amplitude! / t.amplitude).toBeCloseToAbs(1, 0.06);
-      expect(b.background!).toBeCloseToAbs(100, 3);
+      // Source: computed here — the offset SE of two 16-point lateral fits at σ ≈ 10 counts is ≈ 2.5; allow 3 SE.
+      expect(b.background!).toBeCloseToAbs(100, 8);
       expect(b.fwhmXUncertaintyUm!).toBeGreaterThan(0);
       expect(b.r2!).toBeGreaterThan(0.9);
       expect(b.fitConverged.x && b.fitConverged.y && b.fitConverged.z).toBe(true);

@@ -210,3 +210,68 @@ describe("analyzeStack on Gibson–Lanni stacks", () => {
     expect(r.summary.rejected).toBe(r.beads.filter((b) => !b.included).length);
   });
 });
+
+describe("depth series with the optics module's nominal → actual depth", () => {
+  it("recovers actual depth, and the axial width and far-side asymmetry grow with depth (oil NA 1.3 → water)", async () => {
+    const { makeNominalToActualDepth } = await import("../../../../src/lib/optics");
+    const params = { na: 1.3, wavelengthNm: 520, immersionRi: 1.518, sampleRi: 1.333 };
+    const vz = 0.2;
+    const coverslipSlice = 10;
+    const depths = [1, 5, 10, 15];
+    const luts = depths.map((d) => makeGibsonLanniLut(params, d, 6, 2));
+    const beads: SyntheticBead[] = [];
+    const lutByZ = new Map<number, (typeof luts)[number]>();
+    depths.forEach((d, k) => {
+      const z = coverslipSlice + luts[k].peakNominalUm / vz;
+      lutByZ.set(z, luts[k]);
+      for (let i = 0; i < 4; i++) beads.push({ x: 20 + i * 34, y: 20 + k * 34, z, amplitude: 1500 });
+    });
+    const voxel = { x: 0.065, y: 0.065, z: vz };
+    const stack = makeSyntheticStack({
+      shape: [130, 160, 160],
+      voxelSizeUm: voxel,
+      beads,
+      psf: (dx, dy, dz, b) => lutByZ.get(b.z)!.psf(dx, dy, dz, b),
+      renderRadiusUm: { lateral: 1.6, axial: 5.5 },
+      background: BACKGROUND,
+      readNoise: READ_NOISE,
+      seed: 12,
+    });
+    const conv = makeNominalToActualDepth(params, { maxDepthUm: 30 });
+    const r = analyzeStack(stack, {
+      expectedFwhmUm: { lateral: 0.21, axial: 0.64 },
+      coverslipSlice,
+      nominalToActualDepth: conv.toActualUm,
+      minBeadsPerBin: 4,
+    });
+    expect(r.summary.used).toBe(16);
+    for (const d of depths) {
+      const group = r.beads.filter((b) => Math.abs(b.depthUm - d) < 1);
+      // Source: computed here — the GL focal shift inverted by the optics module; bead centres from the 1D axial
+      // fit of the central lobe sit within a fraction of a z-step of the GL intensity maximum.
+      expect(group.length).toBe(4);
+      expect(Math.abs(median(group.map((b) => b.depthUm)) - d)).toBeLessThan(0.15);
+      expect(median(group.map((b) => b.apparentDepthUm))).toBeGreaterThan(d); // nominal travel > actual depth for n_s < n_i
+    }
+    // Source: METHODS.md check value 24 and §8 table — axial FWHM and far-side lobes grow with depth for oil → water.
+    expect(r.trend.fwhmZ.slope!).toBeGreaterThan(0);
+    expect(r.trend.fwhmZ.slopeLow!).toBeGreaterThan(0);
+    expect(r.trend.axialAsymmetry.slope!).toBeGreaterThan(0);
+    expect(r.depthProfile.length).toBe(4);
+    expect(r.depthProfile[3].fwhmZ.medianUm!).toBeGreaterThan(r.depthProfile[0].fwhmZ.medianUm!);
+    // Source: METHODS.md §8 table — far-side lobe 0.295 / near 0.012 at 10 µm (oil NA 1.3 → water, GL, on axis);
+    // the engine's smoothed 3×3 on-axis estimate should land near that, and stay physical (< 0.6) at 15 µm.
+    expect(r.depthProfile[2].medianAxialAsymmetry!).toBeGreaterThan(0.15);
+    expect(r.depthProfile[2].medianAxialAsymmetry!).toBeLessThan(0.35);
+    expect(r.depthProfile[3].medianAxialAsymmetry!).toBeLessThan(0.6);
+    console.log(
+      "depth series",
+      r.depthProfile.map((row) => ({
+        depth: row.depthMedianUm.toFixed(2),
+        fwhmZ: row.fwhmZ.medianUm?.toFixed(3),
+        direct: row.fwhmZDirect.medianUm?.toFixed(3),
+        asym: row.medianAxialAsymmetry?.toFixed(3),
+      })),
+    );
+  });
+});
