@@ -38,8 +38,26 @@ export interface MeasurementVerdict {
 const f2 = (x: number) => x.toFixed(2);
 
 export function measurementVerdict(input: MeasurementVerdictInput): MeasurementVerdict {
-  const { purpose, beadsUsed, ratios, limits, implausiblyGoodRatio = 0.8, minBeads = 3, depthSlope } = input;
+  const {
+    purpose,
+    beadsUsed,
+    ratios,
+    limits,
+    implausiblyGoodRatio = 0.8,
+    minBeads = 3,
+    depthSlope,
+    sampling,
+  } = input;
   const evidence: string[] = [`${beadsUsed} bead${beadsUsed === 1 ? "" : "s"} used.`];
+  // Widths fitted over fewer than ~3 pixels (5 planes) say more about the grid than the lens.
+  if (sampling && !sampling.enoughForFitting) {
+    return {
+      level: "check",
+      headline: "The stack is sampled too coarsely for these widths to judge the lens: check the voxel size.",
+      evidence: [...evidence, sampling.message],
+    };
+  }
+  if (sampling && sampling.verdict !== "ok") evidence.push(`Sampling: ${sampling.message}`);
   if (beadsUsed < minBeads || ratios.lateral == null || ratios.axial == null) {
     return {
       level: "insufficient",

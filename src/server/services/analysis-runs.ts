@@ -108,6 +108,11 @@ export function buildSummary(result: MeasurementPipelineResult, row: Measurement
             predicted: (pb - pa) / (dMax - dMin),
           }
         : null,
+    sampling: {
+      verdict: result.sampling.verdict,
+      message: result.sampling.message,
+      enoughForFitting: result.sampling.lateral.enoughForFitting && result.sampling.axial.enoughForFitting,
+    },
   });
   const psf = analysis.averagedPsf;
   return {

@@ -30,6 +30,10 @@ export class S3Storage implements ObjectStorage {
       region: opts.region,
       endpoint: opts.endpoint,
       forcePathStyle: true,
+      // Many S3-compatible stores keep aws-chunked bodies with checksum trailers verbatim
+      // (the object grows by the trailer); send plain bodies unless a checksum is required.
+      requestChecksumCalculation: "WHEN_REQUIRED",
+      responseChecksumValidation: "WHEN_REQUIRED",
       credentials:
         opts.accessKeyId && opts.secretAccessKey
           ? { accessKeyId: opts.accessKeyId, secretAccessKey: opts.secretAccessKey }
