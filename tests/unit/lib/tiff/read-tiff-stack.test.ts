@@ -12,7 +12,7 @@ import {
   writeFixtureSet,
   type FixtureEntry,
 } from "../../../../fixtures/fixture-set";
-import { inspectTiff, readTiffStack, type StackData } from "../../../../src/lib/tiff";
+import { decodeDeflate, inspectTiff, readTiffStack, type StackData } from "../../../../src/lib/tiff";
 
 function tiffcpAvailable(): boolean {
   try {
@@ -162,6 +162,22 @@ describe("readTiffStack — channel and frame selection", () => {
     await expect(readTiffStack(file("own-u16-plain"), { channel: 1 })).rejects.toMatchObject({
       code: "bad_option",
     });
+  });
+
+  it("uses an injected inflate for Deflate strips and maps its failures to corrupt_data", async () => {
+    const bytes = file("tiffcp-u16-zip-pred");
+    let calls = 0;
+    const counting = (src: Uint8Array, out: Uint8Array) => {
+      calls++;
+      return decodeDeflate(src, out);
+    };
+    const { stack } = await readTiffStack(bytes, { inflate: counting });
+    expect(calls).toBeGreaterThan(0);
+    expect(mismatches(stack.data, sampleStack("uint16").stack.data)).toBe(0);
+    const failing = () => {
+      throw new Error("boom");
+    };
+    await expect(readTiffStack(bytes, { inflate: failing })).rejects.toMatchObject({ code: "corrupt_data" });
   });
 
   it("does not modify its input", async () => {
