@@ -71,6 +71,7 @@ const env = {
 
 const vitest = path.join(ROOT, "node_modules/vitest/vitest.mjs");
 let server;
+let worker;
 let failed = false;
 try {
   run("typecheck", bin.node, [path.join(ROOT, "node_modules/typescript/bin/tsc"), "--noEmit"], env);
@@ -100,6 +101,7 @@ try {
     ...env,
     NODE_ENV: "production",
   });
+  worker = startChild("worker", bin.node, [bin.tsx, "src/worker/index.ts"], env);
   await waitForHttp(`${appUrl}/sign-in`);
   run("e2e", bin.node, [vitest, "run", "--project", "e2e"], env);
 } catch (err) {
@@ -107,6 +109,7 @@ try {
   console.error(`[test] ${err.message}`);
 } finally {
   if (server) server.kill("SIGTERM");
+  if (worker) worker.kill("SIGTERM");
   await new Promise((r) => setTimeout(r, 500));
   try {
     dropDatabase(pg, dbName);
