@@ -119,6 +119,7 @@ export interface BeadSizeCorrection {
   appliedAxial: boolean;
 }
 
+/** Counts and robust width statistics over a bead list (`summarizeBeads`); widths in µm. */
 export interface PsfSummary {
   found: number;
   used: number;
@@ -148,6 +149,7 @@ export interface BinWidth {
   medianCorrectedUm: number | null;
 }
 
+/** One adaptive-width depth bin of included beads (`depthProfile`); depths and widths in µm. */
 export interface DepthProfileRow {
   /** Actual depth range of the bin [start, end] and its median (µm). */
   depthStartUm: number;
@@ -182,6 +184,7 @@ export interface DepthTrend {
   axialAsymmetry: RobustTrend;
 }
 
+/** Registered mean of the included beads (`averagePsf`); volume in units of each bead's amplitude. */
 export interface AveragedPsf {
   /** [nz, ny, nx] */
   shape: [number, number, number];
@@ -196,6 +199,7 @@ export interface AveragedPsf {
   axialAsymmetry: number | null;
 }
 
+/** Medians over the beads of one field region (central or full); widths in µm. */
 export interface RegionStatistics {
   count: number;
   medianFwhmXUm: number | null;
@@ -219,6 +223,7 @@ export interface FocusSurface {
   residualRmsUm: number | null;
 }
 
+/** Field dependence of the PSF (`fieldDependence`); positions and widths in µm. */
 export interface FieldDependence {
   /** Field centre (µm) and radius = centre-to-corner distance (µm). */
   centreXUm: number;
@@ -239,6 +244,7 @@ export interface FieldDependence {
   quadratic: FocusSurface;
 }
 
+/** What produced a result: engine version, every resolved parameter and the stack-level estimates. */
 export interface Provenance {
   engineVersion: string;
   /** Every resolved parameter (functions reported by name only). */
@@ -260,6 +266,7 @@ export interface Provenance {
   candidatesMerged: number;
 }
 
+/** Everything `analyzeStack` returns; plain serialisable data. */
 export interface AnalyzeStackResult {
   beads: BeadResult[];
   summary: PsfSummary;
@@ -270,6 +277,7 @@ export interface AnalyzeStackResult {
   provenance: Provenance;
 }
 
+/** Pipeline stage reported through `onProgress`. */
 export type AnalysisStage = "detecting" | "fitting" | "aggregating";
 
 /** Options of {@link analyzeStack}. Defaults live in `resolveAnalyzeOptions`. */
@@ -281,7 +289,10 @@ export interface AnalyzeStackOptions {
   /** Minimum separation of two detections (µm): lateral, axial. Closer maxima are merged (the brighter kept). @default { lateral: 2·FWHM_lat, axial: 4·FWHM_ax } (a number sets the lateral value). Dimmer on-axis maxima up to
    * 8·FWHM_ax away (< 0.6 of the brighter) are merged too: side lobes of depth-aberrated PSFs (METHODS §8). */
   minSeparationUm?: number | { lateral: number; axial: number };
-  /** Maxima dimmer than this fraction of a brighter one inside its exclusion ellipsoid are merged into it (rings, lobes). @default 0.25 */
+  /**
+   * Maxima dimmer than this fraction of a brighter one within max(exclusion, 8) expected FWHM laterally and max(exclusion, 6) axially are
+   * merged into it (Airy and defocus rings of bright beads, ≲ 0.1 of the peak on GL renders). @default 0.15
+   */
   secondaryFraction?: number;
   /** Neighbour exclusion ellipsoid in units of the expected FWHM. @default { lateral: 3, axial: 2 } */
   exclusionFactor?: { lateral: number; axial: number };

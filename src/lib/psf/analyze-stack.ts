@@ -27,8 +27,8 @@ import { summarizeBeads } from "./summarize-beads";
  * 1. background = stack median, noise σ = 1.4826·MAD (histogram for 8/16-bit);
  * 2. detection on the lightly smoothed stack (σ = ½ the expected PSF σ per axis, clamped to
  *    0.5–1 voxel), threshold background + k·σ_smoothed, merge within `minSeparationUm`, and merge maxima
- *    dimmer than `secondaryFraction` × a brighter one within max(exclusion, 6) expected FWHM
- *    laterally and axially (Airy/defocus rings), and on-axis maxima within 8 expected axial FWHM
+ *    dimmer than `secondaryFraction` × a brighter one within max(exclusion, 8) lateral and
+ *    max(exclusion, 6) axial expected FWHM (Airy/defocus rings), and on-axis maxima within 8 expected axial FWHM
  *    dimmer than 0.6 × a brighter one (side lobes, METHODS §8 up to ≈ 0.4 of the peak);
  * 3. per bead (`measureBead`); reasons, first applicable wins: `edge` (fit window leaves the stack),
  *    `saturated` (a voxel ≥ ceiling near the peak), `neighbour` (another detection inside the
@@ -64,9 +64,10 @@ export function analyzeStack(stack: Stack, options: AnalyzeStackOptions): Analyz
     // Side lobes of a PSF broadened ≈ 2× by depth aberration lie up to ±4 of its FWHM away: 8 matched FWHM.
     axialLobe: { axialUm: 8 * o.expectedFwhmUm.axial, fraction: 0.6 },
     // Side lobes of a depth-aberrated PSF reach several matched axial FWHM from the peak (METHODS §8), and the
-    // defocus rings in those lobe planes ≈ 4 lateral FWHM off axis (seen on GL renders, oil → water 10 µm), hence ≥ 6.
+    // defocus rings in those lobe planes 4–7 lateral FWHM off axis (seen on GL renders, oil → water 10 µm),
+    // hence ≥ 8 laterally and ≥ 6 axially.
     secondaryZoneUm: {
-      lateral: Math.max(o.exclusionFactor.lateral, 6) * o.expectedFwhmUm.lateral,
+      lateral: Math.max(o.exclusionFactor.lateral, 8) * o.expectedFwhmUm.lateral,
       axial: Math.max(o.exclusionFactor.axial, 6) * o.expectedFwhmUm.axial,
     },
     onProgress: progress ? (f) => progress("detecting", f) : undefined,

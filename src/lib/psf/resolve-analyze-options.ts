@@ -87,7 +87,7 @@ export function resolveAnalyzeOptions(stack: Stack, options: AnalyzeStackOptions
     throw new RangeError(`analyzeStack: options.expectedFwhmUm.axial must be > 0 µm; got ${e.axial}`);
   const {
     thresholdK = 6,
-    secondaryFraction = 0.25,
+    secondaryFraction = 0.15,
     exclusionFactor = { lateral: 3, axial: 2 },
     saturationCeiling,
     snrFloor = 10,
