@@ -6,7 +6,17 @@ import tseslint from "typescript-eslint";
 const noApp = { group: ["@/app/*", "**/app/*"], message: "Nothing imports from app/." };
 
 export default tseslint.config(
-  { ignores: [".next/**", "node_modules/**", "drizzle/**", ".data/**", "next-env.d.ts", "test-results/**", "**/*.tmp.*"] },
+  {
+    ignores: [
+      ".next/**",
+      "node_modules/**",
+      "drizzle/**",
+      ".data/**",
+      "next-env.d.ts",
+      "test-results/**",
+      "**/*.tmp.*",
+    ],
+  },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   // TypeScript checks names in .ts files; the plain .mjs scripts get Node's globals.

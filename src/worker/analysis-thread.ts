@@ -4,7 +4,8 @@
  * CPU-bound fitting runs.
  */
 import { parentPort, workerData } from "node:worker_threads";
-import { TiffInputError } from "../lib/tiff";
+import { inflateSync } from "node:zlib";
+import { TiffInputError, decodeDeflate } from "../lib/tiff";
 import {
   AnalysisInputError,
   runMeasurementPipeline,
@@ -20,8 +21,22 @@ interface Input {
 const { bytes, params, maxVoxels } = workerData as Input;
 let last = 0;
 
+/** Node's native zlib for Deflate strips: about twice the pure-JS decoder's speed. */
+function inflate(compressed: Uint8Array, out: Uint8Array): number {
+  let result: Buffer;
+  try {
+    result = inflateSync(compressed);
+  } catch {
+    return decodeDeflate(compressed, out); // raw deflate or corrupt data: the pure decoder says which
+  }
+  const n = Math.min(result.length, out.length);
+  out.set(result.subarray(0, n));
+  return n;
+}
+
 runMeasurementPipeline(bytes, params, {
   maxVoxels,
+  inflate,
   onProgress(stage, fraction) {
     const now = Date.now();
     if (now - last < 250 && fraction < 1) return;

@@ -85,6 +85,8 @@ export async function runMeasurementPipeline(
   params: MeasurementParameters,
   options: {
     maxVoxels?: number;
+    /** A faster Deflate decoder (e.g. Node's zlib) injected by the caller; lib/tiff's pure one otherwise. */
+    inflate?: (compressed: Uint8Array, out: Uint8Array) => number;
     onProgress?: (stage: AnalysisStage | "reading" | "modelling", fraction: number) => void;
   } = {},
 ): Promise<MeasurementPipelineResult> {
@@ -94,6 +96,7 @@ export async function runMeasurementPipeline(
     channel: params.channel,
     maxVoxels: options.maxVoxels,
     minSlices: 2,
+    inflate: options.inflate,
   });
   const voxelSizeUm = params.voxelSizeUm ?? stack.voxelSizeUm;
   if (!voxelSizeUm) {

@@ -27,6 +27,8 @@ export interface MeasurementVerdictInput {
     measuredHigh: number | null;
     predicted: number | null;
   } | null;
+  /** The sampling check of the stack's voxel size for this lens and wavelength. */
+  sampling?: { verdict: string; message: string; enoughForFitting: boolean } | null;
 }
 
 export interface MeasurementVerdict {

@@ -49,7 +49,10 @@ export interface TiffStackResult {
  * const { stack, metadata } = await readTiffStack(bytes, { channel: 1 });
  * stack.shape; // [nz, ny, nx]
  */
-export async function readTiffStack(input: ArrayBuffer | Uint8Array, options: ReadTiffStackOptions = {}): Promise<TiffStackResult> {
+export async function readTiffStack(
+  input: ArrayBuffer | Uint8Array,
+  options: ReadTiffStackOptions = {},
+): Promise<TiffStackResult> {
   const bytes = toBytes(input);
   const plan = await planTiffStack(bytes, options);
   const { metadata, pages, structure } = plan;
@@ -59,21 +62,38 @@ export async function readTiffStack(input: ArrayBuffer | Uint8Array, options: Re
   let data: StackData;
   try {
     data =
-      dtype === "uint8" ? new Uint8Array(voxels)
-      : dtype === "uint16" ? new Uint16Array(voxels)
-      : dtype === "uint32" ? new Uint32Array(voxels)
-      : new Float32Array(voxels);
+      dtype === "uint8"
+        ? new Uint8Array(voxels)
+        : dtype === "uint16"
+          ? new Uint16Array(voxels)
+          : dtype === "uint32"
+            ? new Uint32Array(voxels)
+            : new Float32Array(voxels);
   } catch {
-    throw new TiffInputError("too_large", `Could not allocate ${metadata.stackBytes} bytes for the stack.`, { bytes: metadata.stackBytes });
+    throw new TiffInputError("too_large", `Could not allocate ${metadata.stackBytes} bytes for the stack.`, {
+      bytes: metadata.stackBytes,
+    });
   }
   const out = new Uint8Array(data.buffer, data.byteOffset, data.byteLength);
   const planeBytes = nx * ny * data.BYTES_PER_ELEMENT;
   let scratch: Uint8Array | null = null;
   try {
-    for (let z = 0; z < nz; z++) scratch = decodePage(bytes, pages[z], structure.littleEndian, out, z * planeBytes, scratch, options.inflate);
+    for (let z = 0; z < nz; z++)
+      scratch = decodePage(
+        bytes,
+        pages[z],
+        structure.littleEndian,
+        out,
+        z * planeBytes,
+        scratch,
+        options.inflate,
+      );
   } catch (e) {
     if (e instanceof TiffInputError) throw e;
-    throw new TiffInputError("corrupt_data", `Pixel data could not be decoded: ${e instanceof Error ? e.message.slice(0, 300) : String(e)}`);
+    throw new TiffInputError(
+      "corrupt_data",
+      `Pixel data could not be decoded: ${e instanceof Error ? e.message.slice(0, 300) : String(e)}`,
+    );
   }
   return {
     stack: { data, shape: [nz, ny, nx], dtype, voxelSizeUm: voxelSizeFromMetadata(metadata) },
