@@ -8,6 +8,7 @@ export const measurementKeys = {
 
 export interface MeasurementView {
   id: string;
+  objectiveId: string;
   purpose: string;
   status: "queued" | "running" | "done" | "failed" | "cancelled";
   progress: { stage: string; fraction: number };

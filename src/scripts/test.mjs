@@ -64,6 +64,7 @@ const env = {
   PG_BIN: pg.bin,
   PG_PORT: String(pg.port),
   DEMO_PASSWORDS_FILE: passwordsFile,
+  DEMO_HISTORY: "0",
   E2E_BASE_URL: appUrl,
   E2E_PASSWORDS_FILE: passwordsFile,
   E2E_SCREENSHOT_DIR: path.join(ROOT, "test-results", "screenshots"),

@@ -1,14 +1,11 @@
 /** The facility overview: every visible objective's status, due checks and recent measurements. */
-import { computeObjectiveStatus, type ObjectiveStatusResult } from "../../lib/qc";
+import type { ObjectiveStatusResult } from "../../lib/qc";
 import type { Db } from "../db/client";
 import { listInstrumentsByFacility } from "../db/queries/instruments";
-import { listLatestChecksByObjectives, listRecentMeasurementsByFacility } from "../db/queries/measurements";
+import { listRecentMeasurementsByFacility } from "../db/queries/measurements";
 import type { Actor } from "../auth/permissions";
 import { listObjectives, visibleInstrumentIds } from "./instruments";
-
-interface SummaryRatios {
-  ratios?: { lateral?: number | null; axial?: number | null };
-}
+import { getTrends } from "./logbook";
 
 export interface DashboardObjective {
   id: string;
@@ -28,29 +25,21 @@ export async function getDashboard(db: Db, actor: Actor, now = new Date()) {
     listInstrumentsByFacility(db, { facilityId: actor.facilityId, onlyIds }),
   ]);
   const active = objs.filter((o) => !o.retired);
-  const latest = await listLatestChecksByObjectives(db, { objectiveIds: active.map((o) => o.id) });
-  const byObjective = new Map(latest.map((l) => [l.objectiveId, l]));
+  const trends = await getTrends(db, active, now);
   const instrumentName = new Map(instruments.map((i) => [i.id, i.name]));
 
   const objectives: DashboardObjective[] = active.map((o) => {
-    const check = byObjective.get(o.id);
-    const r = (check?.summary as SummaryRatios | null)?.ratios;
-    const ratios = r ? { lateral: r.lateral ?? null, axial: r.axial ?? null } : null;
+    const trend = trends.get(o.id)!;
+    const last = trend.points[trend.points.length - 1];
     return {
       id: o.id,
       name: o.name,
       na: o.na,
       immersion: o.immersion,
       instrumentName: o.instrumentId ? (instrumentName.get(o.instrumentId) ?? null) : null,
-      lastCheckAt: check?.acquiredAt ?? null,
-      ratios,
-      status: computeObjectiveStatus({
-        now,
-        lastCheckAt: check?.acquiredAt ?? null,
-        checkIntervalDays: o.checkIntervalDays,
-        latestRatios: ratios,
-        limits: { lateral: o.lateralRatioLimit, axial: o.axialRatioLimit },
-      }),
+      lastCheckAt: last ? new Date(last.acquiredAt) : null,
+      ratios: last ? { lateral: last.lateralRatio, axial: last.axialRatio } : null,
+      status: trend.status,
     };
   });
   objectives.sort((a, b) => b.status.urgency - a.status.urgency || a.name.localeCompare(b.name));

@@ -14,7 +14,7 @@ import {
   resolveAnalyzeOptions,
   type AnalyzeStackResult,
 } from "../../../../src/lib/psf";
-import { makeGibsonLanniLut } from "./gibson-lanni-lut";
+import { makeGibsonLanniLut } from "../../../../fixtures/gibson-lanni-lut";
 
 const VOXEL = { x: 0.065, y: 0.065, z: 0.1 };
 const SHAPE: [number, number, number] = [90, 224, 224];

@@ -6,6 +6,9 @@ import { requirePageActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
 import { getObjectiveOverview } from "@/server/services/objective-overview";
+import { can } from "@/server/auth/permissions";
+import { LogbookCharts } from "./_components/logbook-charts";
+import { EventForm } from "./_components/event-form";
 import { StatusBadge } from "@/components/status-badge";
 import { fmtDate, fmtNum } from "@/components/format";
 
@@ -22,7 +25,15 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
     if (err instanceof AppError && err.code === "not_found") notFound();
     throw err;
   }
-  const { objective: o, status, measurements } = data;
+  const { objective: o, status, measurements, trend } = data;
+  const slope = trend.slopePerMonth;
+  const fmtSlope = (t: typeof slope.lateral) =>
+    t.slope == null
+      ? "—"
+      : `${t.slope >= 0 ? "+" : ""}${t.slope.toFixed(3)} per month` +
+        (t.slopeLow != null && t.slopeHigh != null
+          ? ` (95 % ${t.slopeLow.toFixed(3)} to ${t.slopeHigh.toFixed(3)})`
+          : "");
   return (
     <div className="space-y-6">
       <div className="flex items-center gap-3">
@@ -42,6 +53,63 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
           label="Acceptance limits (meas./theory)"
           value={`lateral < ${fmtNum(o.lateralRatioLimit)}, axial < ${fmtNum(o.axialRatioLimit)}`}
         />
+      </section>
+      <section className="card space-y-3">
+        <div className="flex flex-wrap items-baseline gap-4">
+          <h2>Logbook</h2>
+          <span className="text-xs text-ink-soft">
+            Current baseline epoch: {trend.charts.axial.n} check(s)
+            {trend.charts.axial.provisional ? " · limits provisional until 20 checks" : ""}
+          </span>
+          <span className="text-xs text-ink-soft">
+            Rate of change over 12 months — lateral {fmtSlope(slope.lateral)}; axial {fmtSlope(slope.axial)}
+          </span>
+        </div>
+        {trend.mixedFormulas ? (
+          <p className="text-sm text-watch">
+            This epoch mixes theory formulas: re-analyse older checks before comparing them.
+          </p>
+        ) : null}
+        {trend.points.length === 0 ? (
+          <p className="text-sm text-ink-soft">
+            No completed checks yet: the charts appear after the first measurement.
+          </p>
+        ) : (
+          <LogbookCharts
+            trend={{
+              points: trend.points,
+              currentEpoch: trend.currentEpoch,
+              charts: trend.charts,
+              events: trend.events,
+            }}
+            limits={{ lateral: o.lateralRatioLimit, axial: o.axialRatioLimit }}
+          />
+        )}
+        {can(actor, "instruments.manage") || can(actor, "baselines.manage") ? (
+          <EventForm objectiveId={o.id} canBaseline={can(actor, "baselines.manage")} />
+        ) : null}
+        {trend.events.length ? (
+          <table className="data-table">
+            <thead>
+              <tr>
+                <th>When</th>
+                <th>Event</th>
+                <th>Note</th>
+                <th>By</th>
+              </tr>
+            </thead>
+            <tbody>
+              {[...trend.events].reverse().map((e) => (
+                <tr key={e.id}>
+                  <td className="font-mono">{fmtDate(e.occurredAt)}</td>
+                  <td>{e.kind.replace(/_/g, " ")}</td>
+                  <td className="text-sm">{e.note ?? ""}</td>
+                  <td>{e.by ?? "—"}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        ) : null}
       </section>
       <section className="card">
         <h2 className="mb-3">Measurements</h2>

@@ -12,6 +12,7 @@ import {
 import { DepthProfileChart, IntensityChart } from "@/components/charts/depth-profile-chart";
 import { PsfSections, decodeFloat32 } from "@/components/charts/psf-sections";
 import { BeadTable } from "./bead-table";
+import { TroubleshootingChecklist } from "./troubleshooting-checklist";
 
 const STAGES = ["queued", "reading", "detecting", "fitting", "modelling", "saving"];
 const STAGE_LABEL: Record<string, string> = {
@@ -118,6 +119,9 @@ export function MeasurementView({ id }: { id: string }) {
       ) : null}
 
       {done && m.summary ? <Results summary={m.summary} beads={beads ?? []} params={p} id={id} /> : null}
+      {done && m.summary?.verdict.level === "fail" && m.purpose !== "sample" ? (
+        <TroubleshootingChecklist objectiveId={m.objectiveId} />
+      ) : null}
       <p className="text-xs text-ink-faint">
         <Link href="/dashboard">Dashboard</Link> · engine {m.engineVersion ?? "—"} · theory{" "}
         {m.formulaId ?? "—"}
