@@ -11,3 +11,11 @@ export type {
   RuleId,
   TheilSenResult,
 } from "./control-chart";
+export { checkReminders } from "./check-reminders";
+export type {
+  CheckReminders,
+  CheckRemindersOptions,
+  ReminderItem,
+  ReminderKind,
+  ReminderObjective,
+} from "./check-reminders";

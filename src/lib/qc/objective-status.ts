@@ -60,7 +60,7 @@ export function computeObjectiveStatus(input: ObjectiveStatusInput): ObjectiveSt
       status: "no data",
       reason: "No bead check has been recorded for this objective yet.",
       nextDueAt: null,
-      urgency: 3,
+      urgency: 2.5,
     };
   }
   const nextDueAt = new Date(lastCheckAt.getTime() + checkIntervalDays * DAY_MS);
@@ -93,7 +93,7 @@ export function computeObjectiveStatus(input: ObjectiveStatusInput): ObjectiveSt
       status: "watch",
       reason: `${statistical.reason}${statistical.level === "warning" ? " (warning only)" : ""}. Still within the acceptance limits.`,
       nextDueAt,
-      urgency: statistical.level === "alarm" ? 2.5 : 2,
+      urgency: statistical.level === "alarm" ? 3 : 2,
     };
   }
   const low = [

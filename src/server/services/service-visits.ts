@@ -1,9 +1,20 @@
-import { eq, inArray } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
+import type { CreateServiceVisit } from "../../contracts/service-visits";
 import type { Db } from "../db/client";
-import { instruments, serviceVisitInstruments, users } from "../db/schema";
+import {
+  instruments,
+  memberships,
+  objectives,
+  serviceVisitInstruments,
+  serviceVisits,
+  users,
+} from "../db/schema";
+import { insertAuditEntry } from "../db/queries/audit";
+import { listChecksByObjective, listEventsByObjective } from "../db/queries/logbook";
 import { listServiceVisitsByFacility } from "../db/queries/service-visits";
-import type { Actor } from "../auth/permissions";
-import { AppError } from "../http/errors";
+import { requirePermission, type Actor } from "../auth/permissions";
+import { AppError, notFound } from "../http/errors";
+import { buildTrend } from "./logbook";
 
 /** Visits of the facility; an engineer sees only their own. */
 export async function listServiceVisits(db: Db, actor: Actor) {
@@ -32,4 +43,215 @@ export async function listServiceVisits(db: Db, actor: Actor) {
     instrumentNames: links.filter((l) => l.visitId === v.id).map((l) => l.name),
     engineerName: engineers.find((e) => e.id === v.engineerId)?.name ?? null,
   }));
+}
+
+/** Plan a visit: which engineer, which instruments, which dates (admins and staff). */
+export async function createServiceVisit(db: Db, actor: Actor, input: CreateServiceVisit) {
+  requirePermission(actor, "instruments.manage");
+  return db.transaction(async (tx) => {
+    if (input.engineerId) {
+      const [m] = await tx
+        .select()
+        .from(memberships)
+        .where(and(eq(memberships.facilityId, actor.facilityId), eq(memberships.userId, input.engineerId)));
+      if (!m) throw new AppError("unprocessable", "That engineer is not a member of this facility.");
+    }
+    const insts = await tx
+      .select({ id: instruments.id })
+      .from(instruments)
+      .where(and(eq(instruments.facilityId, actor.facilityId), inArray(instruments.id, input.instrumentIds)));
+    if (insts.length !== new Set(input.instrumentIds).size) {
+      throw new AppError("unprocessable", "Some instruments do not exist in this facility.");
+    }
+    const endsAt = new Date(input.endsAt);
+    if (input.endsAt.length === 10) endsAt.setUTCHours(23, 59, 59, 999); // a date means "to the end of that day"
+    const [visit] = await tx
+      .insert(serviceVisits)
+      .values({
+        facilityId: actor.facilityId,
+        engineerId: input.engineerId ?? null,
+        title: input.title,
+        startsAt: new Date(input.startsAt),
+        endsAt,
+      })
+      .returning();
+    await tx
+      .insert(serviceVisitInstruments)
+      .values(insts.map((i) => ({ visitId: visit!.id, instrumentId: i.id })));
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "service_visit.create",
+      targetType: "service_visit",
+      targetId: visit!.id,
+    });
+    return visit!;
+  });
+}
+
+async function getVisitRow(db: Db, actor: Actor, id: string) {
+  if (actor.role === "researcher") throw notFound("Service visit");
+  const [visit] = await db
+    .select()
+    .from(serviceVisits)
+    .where(and(eq(serviceVisits.facilityId, actor.facilityId), eq(serviceVisits.id, id)));
+  if (!visit || (actor.role === "engineer" && visit.engineerId !== actor.userId))
+    throw notFound("Service visit");
+  return visit;
+}
+
+export interface VisitComparison {
+  objectiveId: string;
+  objectiveName: string;
+  instrumentName: string;
+  limits: { lateral: number; axial: number };
+  baseline: {
+    lateral: number | null;
+    axial: number | null;
+    sigmaLateral: number | null;
+    sigmaAxial: number | null;
+    checks: number;
+  };
+  asFound: { measurementId: string; acquiredAt: string; lateral: number | null; axial: number | null } | null;
+  asLeft: { measurementId: string; acquiredAt: string; lateral: number | null; axial: number | null } | null;
+  verdict: "restored" | "not restored" | "awaiting as-left check";
+  reason: string;
+}
+
+/**
+ * The visit report: for every objective on the visit's instruments, the historical
+ * baseline (the epoch before the visit: centre and σ of its individuals chart), the
+ * as-found (pre-service) and as-left (post-service) checks, and whether the lens is
+ * back within its acceptance limits and within 3σ of that baseline.
+ */
+export async function getServiceVisitReport(db: Db, actor: Actor, id: string) {
+  const visit = await getVisitRow(db, actor, id);
+  const links = await db
+    .select({ id: instruments.id, name: instruments.name })
+    .from(serviceVisitInstruments)
+    .innerJoin(instruments, eq(instruments.id, serviceVisitInstruments.instrumentId))
+    .where(eq(serviceVisitInstruments.visitId, visit.id));
+  const objs = links.length
+    ? await db
+        .select()
+        .from(objectives)
+        .where(
+          inArray(
+            objectives.instrumentId,
+            links.map((l) => l.id),
+          ),
+        )
+    : [];
+  const ids = objs.map((o) => o.id);
+  const [checks, events] = await Promise.all([
+    listChecksByObjective(db, { objectiveIds: ids }),
+    listEventsByObjective(db, { objectiveIds: ids }),
+  ]);
+  const start = visit.startsAt.getTime();
+  const end = visit.endsAt.getTime();
+  const comparisons: VisitComparison[] = objs.map((o) => {
+    const mine = checks.filter((c) => c.objectiveId === o.id);
+    const before = mine.filter((c) => c.acquiredAt.getTime() < start);
+    const history = buildTrend(
+      o,
+      before,
+      events.filter((e) => e.objectiveId === o.id && e.occurredAt.getTime() < start),
+      visit.startsAt,
+    );
+    const during = mine.filter((c) => c.acquiredAt.getTime() >= start && c.acquiredAt.getTime() <= end);
+    const ratios = (c: (typeof mine)[number] | undefined) => {
+      if (!c) return null;
+      const r = (c.summary as { ratios?: { lateral?: number | null; axial?: number | null } } | null)?.ratios;
+      return {
+        measurementId: c.id,
+        acquiredAt: c.acquiredAt.toISOString(),
+        lateral: r?.lateral ?? null,
+        axial: r?.axial ?? null,
+      };
+    };
+    const asFound = ratios(
+      during.filter((c) => c.purpose === "pre-service").pop() ?? before[before.length - 1],
+    );
+    const asLeft = ratios(during.filter((c) => c.purpose === "post-service").pop());
+    const baseline = {
+      lateral: history.charts.lateral.centre,
+      axial: history.charts.axial.centre,
+      sigmaLateral: history.charts.lateral.sigma,
+      sigmaAxial: history.charts.axial.sigma,
+      checks: history.charts.axial.n,
+    };
+    const limits = { lateral: o.lateralRatioLimit, axial: o.axialRatioLimit };
+    let verdict: VisitComparison["verdict"] = "awaiting as-left check";
+    let reason = "No post-service check in the visit window yet.";
+    if (asLeft && asLeft.lateral != null && asLeft.axial != null) {
+      const problems: string[] = [];
+      if (asLeft.lateral >= limits.lateral)
+        problems.push(
+          `lateral ${asLeft.lateral.toFixed(2)}× theory is above the limit ${limits.lateral.toFixed(2)}`,
+        );
+      if (asLeft.axial >= limits.axial)
+        problems.push(
+          `axial ${asLeft.axial.toFixed(2)}× theory is above the limit ${limits.axial.toFixed(2)}`,
+        );
+      const beyond = (v: number, c: number | null, sd: number | null, name: string) =>
+        c != null && sd != null && sd > 0 && v > c + 3 * sd
+          ? `${name} ${v.toFixed(2)} is more than 3σ above the baseline ${c.toFixed(2)}`
+          : null;
+      const b1 = beyond(asLeft.lateral, baseline.lateral, baseline.sigmaLateral, "lateral");
+      const b2 = beyond(asLeft.axial, baseline.axial, baseline.sigmaAxial, "axial");
+      if (b1) problems.push(b1);
+      if (b2) problems.push(b2);
+      verdict = problems.length ? "not restored" : "restored";
+      reason = problems.length
+        ? problems.join("; ")
+        : baseline.checks >= 3
+          ? `As left: lateral ${asLeft.lateral.toFixed(2)}×, axial ${asLeft.axial.toFixed(2)}× theory — within the limits and within 3σ of the ${baseline.checks}-check baseline.`
+          : `As left: lateral ${asLeft.lateral.toFixed(2)}×, axial ${asLeft.axial.toFixed(2)}× theory — within the limits (too little history for a statistical baseline).`;
+    }
+    return {
+      objectiveId: o.id,
+      objectiveName: o.name,
+      instrumentName: links.find((l) => l.id === o.instrumentId)?.name ?? "—",
+      limits,
+      baseline,
+      asFound,
+      asLeft,
+      verdict,
+      reason,
+    };
+  });
+  const [engineer] = visit.engineerId
+    ? await db.select({ name: users.name }).from(users).where(eq(users.id, visit.engineerId))
+    : [];
+  return {
+    visit: { ...visit, engineerName: engineer?.name ?? null },
+    instruments: links,
+    comparisons,
+  };
+}
+
+/** Sign off the visit with its report; the report is kept with the visit. */
+export async function signOffServiceVisit(db: Db, actor: Actor, id: string, report: string) {
+  const visit = await getVisitRow(db, actor, id);
+  if (actor.role !== "engineer") requirePermission(actor, "instruments.manage");
+  if (visit.signedOffAt) throw new AppError("conflict", "This visit was already signed off.");
+  await db.transaction(async (tx) => {
+    await tx.update(serviceVisits).set({ report, signedOffAt: new Date() }).where(eq(serviceVisits.id, id));
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "service_visit.sign_off",
+      targetType: "service_visit",
+      targetId: id,
+    });
+  });
+}
+
+export async function listEngineers(db: Db, actor: Actor) {
+  requirePermission(actor, "instruments.manage");
+  return db
+    .select({ id: users.id, name: users.name })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.facilityId, actor.facilityId), eq(memberships.role, "engineer")));
 }

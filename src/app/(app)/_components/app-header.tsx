@@ -21,7 +21,7 @@ const ROLE_LABEL: Record<string, string> = {
 
 export function AppHeader({ facilityName, userName, role, nav, facilities, currentFacilityId }: Props) {
   return (
-    <header className="border-b border-paper-line bg-paper-card">
+    <header className="border-b border-paper-line bg-paper-card print:hidden">
       <div className="mx-auto flex max-w-7xl items-center gap-6 px-6 py-3">
         <Link href="/dashboard" className="flex items-center gap-2 text-ink no-underline">
           <img src="/icon.svg" alt="" width={24} height={24} />

@@ -17,15 +17,12 @@ export default async function DashboardPage() {
   }, {});
   return (
     <div className="space-y-6">
-      <div className="flex items-end justify-between">
+      <div className="flex flex-wrap items-end gap-4">
         <div>
           <h1>Dashboard</h1>
           <p className="text-sm text-ink-soft">Every objective, most urgent first.</p>
         </div>
-        <Link href="/measurements/new" className="btn" data-testid="new-measurement">
-          New measurement
-        </Link>
-        <div className="flex gap-3 text-sm" aria-label="Status counts">
+        <div className="ml-auto flex gap-3 text-sm" aria-label="Status counts">
           {(["out of spec", "overdue", "watch", "in spec", "no data"] as const).map((s) => (
             <span key={s} className="flex items-center gap-1">
               <StatusBadge status={s} />
@@ -33,6 +30,9 @@ export default async function DashboardPage() {
             </span>
           ))}
         </div>
+        <Link href="/measurements/new" className="btn" data-testid="new-measurement">
+          New measurement
+        </Link>
       </div>
 
       <section className="card" aria-labelledby="objectives-heading">
@@ -69,10 +69,10 @@ export default async function DashboardPage() {
                   <td>{o.instrumentName ?? "—"}</td>
                   <td className="num">{fmtNum(o.na, 2)}</td>
                   <td>{o.immersion}</td>
-                  <td className="font-mono">{fmtDate(o.lastCheckAt)}</td>
+                  <td className="whitespace-nowrap font-mono">{fmtDate(o.lastCheckAt)}</td>
                   <td className="num">{fmtNum(o.ratios?.lateral)}</td>
                   <td className="num">{fmtNum(o.ratios?.axial)}</td>
-                  <td className="font-mono">{fmtDate(o.status.nextDueAt)}</td>
+                  <td className="whitespace-nowrap font-mono">{fmtDate(o.status.nextDueAt)}</td>
                   <td className="max-w-xs text-xs text-ink-soft">{o.status.reason}</td>
                 </tr>
               ))}

@@ -2,7 +2,11 @@ import type { Metadata } from "next";
 import { forbidden } from "next/navigation";
 import { requirePageActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
-import { listServiceVisits } from "@/server/services/service-visits";
+import Link from "next/link";
+import { can } from "@/server/auth/permissions";
+import { listInstruments } from "@/server/services/instruments";
+import { listEngineers, listServiceVisits } from "@/server/services/service-visits";
+import { PlanVisitForm } from "./_components/plan-visit-form";
 import { fmtDate } from "@/components/format";
 
 export const metadata: Metadata = { title: "Service visits" };
@@ -10,7 +14,12 @@ export const metadata: Metadata = { title: "Service visits" };
 export default async function ServiceVisitsPage() {
   const { actor } = await requirePageActor();
   if (actor.role === "researcher") forbidden();
-  const visits = await listServiceVisits(getDb(), actor);
+  const db = getDb();
+  const visits = await listServiceVisits(db, actor);
+  const manage = can(actor, "instruments.manage");
+  const [engineers, instruments] = manage
+    ? await Promise.all([listEngineers(db, actor), listInstruments(db, actor)])
+    : [[], []];
   const now = Date.now();
   return (
     <div className="space-y-6">
@@ -38,7 +47,9 @@ export default async function ServiceVisitsPage() {
             <tbody>
               {visits.map((v) => (
                 <tr key={v.id}>
-                  <td>{v.title}</td>
+                  <td>
+                    <Link href={`/service-visits/${v.id}`}>{v.title}</Link>
+                  </td>
                   <td className="font-mono">{fmtDate(v.startsAt)}</td>
                   <td className="font-mono">{fmtDate(v.endsAt)}</td>
                   <td>{v.instrumentNames.join(", ") || "—"}</td>
@@ -58,6 +69,15 @@ export default async function ServiceVisitsPage() {
           </table>
         )}
       </section>
+      {manage ? (
+        <section className="card">
+          <h2 className="mb-3">Plan a visit</h2>
+          <PlanVisitForm
+            engineers={engineers}
+            instruments={instruments.map((i) => ({ id: i.id, name: i.name }))}
+          />
+        </section>
+      ) : null}
     </div>
   );
 }

@@ -60,6 +60,6 @@ export async function listRecentMeasurementsByFacility(
     .innerJoin(stacks, eq(stacks.id, measurements.stackId))
     .leftJoin(users, eq(users.id, measurements.createdBy))
     .where(and(...conds))
-    .orderBy(desc(measurements.createdAt))
+    .orderBy(desc(measurements.acquiredAt), desc(measurements.createdAt))
     .limit(limit);
 }

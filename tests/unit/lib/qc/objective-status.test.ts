@@ -82,16 +82,25 @@ describe("computeObjectiveStatus", () => {
     expect(r.reason).toContain("pixel size");
   });
 
-  it("ranks urgency out of spec > overdue > no data > watch > in spec", () => {
+  it("ranks urgency out of spec > overdue > statistical alarm > no data > warning > in spec", () => {
     const base = { now, checkIntervalDays: 30, limits };
     const u = (s: Parameters<typeof computeObjectiveStatus>[0]) => computeObjectiveStatus(s).urgency;
     const oos = u({ ...base, lastCheckAt: daysAgo(1), latestRatios: { lateral: 2, axial: 1 } });
     const overdue = u({ ...base, lastCheckAt: daysAgo(60), latestRatios: { lateral: 1, axial: 1 } });
     const none = u({ ...base, lastCheckAt: null, latestRatios: null });
     const ok = u({ ...base, lastCheckAt: daysAgo(1), latestRatios: { lateral: 1, axial: 1 } });
+    const stat = (level: "alarm" | "warning") =>
+      u({
+        ...base,
+        lastCheckAt: daysAgo(1),
+        latestRatios: { lateral: 1, axial: 1 },
+        statistical: { level, reason: "r" },
+      });
     expect(oos).toBeGreaterThan(overdue);
-    expect(overdue).toBeGreaterThan(none);
-    expect(none).toBeGreaterThan(ok);
+    expect(overdue).toBeGreaterThan(stat("alarm"));
+    expect(stat("alarm")).toBeGreaterThan(none);
+    expect(none).toBeGreaterThan(stat("warning"));
+    expect(stat("warning")).toBeGreaterThan(ok);
   });
 
   it("rejects a non-positive interval with a message naming it", () => {

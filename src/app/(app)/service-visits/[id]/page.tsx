@@ -1,0 +1,125 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { z } from "zod";
+import { requirePageActor } from "@/server/auth/current-actor";
+import { getDb } from "@/server/db/client";
+import { AppError } from "@/server/http/errors";
+import { getServiceVisitReport } from "@/server/services/service-visits";
+import { fmtDate, fmtNum } from "@/components/format";
+import { SignOffForm } from "./_components/sign-off-form";
+import { PrintButton } from "./_components/print-button";
+
+export const metadata: Metadata = { title: "Service visit" };
+
+const VERDICT_STYLE: Record<string, string> = {
+  restored: "text-good",
+  "not restored": "text-bad",
+  "awaiting as-left check": "text-watch",
+};
+
+export default async function ServiceVisitPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  if (!z.uuid().safeParse(id).success) notFound();
+  const { actor, facilityName } = await requirePageActor();
+  let data;
+  try {
+    data = await getServiceVisitReport(getDb(), actor, id);
+  } catch (err) {
+    if (err instanceof AppError && err.code === "not_found") notFound();
+    throw err;
+  }
+  const { visit, instruments, comparisons } = data;
+  return (
+    <article className="space-y-6 print:space-y-3" data-testid="visit-report">
+      <div className="flex flex-wrap items-baseline gap-3">
+        <h1>{visit.title}</h1>
+        <span className="font-mono text-sm text-ink-soft">
+          {fmtDate(visit.startsAt)} – {fmtDate(visit.endsAt)}
+        </span>
+        <div className="ml-auto print:hidden">
+          <PrintButton />
+        </div>
+      </div>
+      <p className="text-sm text-ink-soft">
+        {facilityName} · engineer {visit.engineerName ?? "not assigned"} · instruments{" "}
+        {instruments.map((i) => i.name).join(", ") || "—"}
+        {visit.signedOffAt ? ` · signed off ${fmtDate(visit.signedOffAt)}` : ""}
+      </p>
+      <section className="card">
+        <h2 className="mb-2">As found and as left, against each objective&apos;s baseline</h2>
+        {comparisons.length === 0 ? (
+          <p className="text-sm text-ink-soft">No objectives are mounted on these instruments.</p>
+        ) : (
+          <table className="data-table" data-testid="visit-comparisons">
+            <thead>
+              <tr>
+                <th>Objective</th>
+                <th className="num">Baseline lat. / ax. (×theory)</th>
+                <th className="num">As found lat. / ax.</th>
+                <th className="num">As left lat. / ax.</th>
+                <th className="num">Limits</th>
+                <th>Result</th>
+              </tr>
+            </thead>
+            <tbody>
+              {comparisons.map((c) => (
+                <tr key={c.objectiveId}>
+                  <td>
+                    <Link href={`/instruments/objectives/${c.objectiveId}`}>{c.objectiveName}</Link>
+                    <div className="text-xs text-ink-faint">{c.instrumentName}</div>
+                  </td>
+                  <td className="num">
+                    {fmtNum(c.baseline.lateral)} / {fmtNum(c.baseline.axial)}
+                    <div className="text-xs text-ink-faint">
+                      {c.baseline.checks} checks
+                      {c.baseline.sigmaAxial != null ? `, σ ax. ${fmtNum(c.baseline.sigmaAxial, 3)}` : ""}
+                    </div>
+                  </td>
+                  <td className="num">
+                    {c.asFound ? (
+                      <Link href={`/measurements/${c.asFound.measurementId}`}>
+                        {fmtNum(c.asFound.lateral)} / {fmtNum(c.asFound.axial)}
+                      </Link>
+                    ) : (
+                      "—"
+                    )}
+                  </td>
+                  <td className="num">
+                    {c.asLeft ? (
+                      <Link href={`/measurements/${c.asLeft.measurementId}`}>
+                        {fmtNum(c.asLeft.lateral)} / {fmtNum(c.asLeft.axial)}
+                      </Link>
+                    ) : (
+                      "—"
+                    )}
+                  </td>
+                  <td className="num">
+                    {fmtNum(c.limits.lateral)} / {fmtNum(c.limits.axial)}
+                  </td>
+                  <td className="max-w-sm text-sm">
+                    <span className={`font-semibold ${VERDICT_STYLE[c.verdict]}`}>{c.verdict}</span>
+                    <div className="text-xs text-ink-soft">{c.reason}</div>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        )}
+      </section>
+      <section className="card">
+        <h2 className="mb-2">Report</h2>
+        {visit.signedOffAt ? (
+          <pre className="whitespace-pre-wrap font-sans text-sm">{visit.report}</pre>
+        ) : (
+          <SignOffForm visitId={visit.id} />
+        )}
+      </section>
+      <p className="text-xs text-ink-faint">
+        Baseline = centre and σ of the individuals chart of the last epoch before the visit.
+        &quot;Restored&quot; = as-left ratios below the acceptance limits and no more than 3σ above that
+        baseline. These numbers are advisory and do not replace the manufacturer&apos;s own acceptance tests.
+      </p>
+    </article>
+  );
+}
