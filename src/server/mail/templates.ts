@@ -1,0 +1,111 @@
+/**
+ * The text of every mail we send: a plain-text body (what most facility mail
+ * clients show first) and a simple HTML body with the same words. Every value
+ * put into HTML is escaped.
+ */
+import type { CheckReminders, ReminderItem } from "../../lib/qc";
+
+export interface RenderedMail {
+  subject: string;
+  text: string;
+  html: string;
+}
+
+export function escapeHtml(s: string): string {
+  return s
+    .replace(/&/g, "&amp;")
+    .replace(/</g, "&lt;")
+    .replace(/>/g, "&gt;")
+    .replace(/"/g, "&quot;")
+    .replace(/'/g, "&#39;");
+}
+
+function page(title: string, body: string): string {
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><title>${escapeHtml(title)}</title></head>
+<body style="font-family: system-ui, sans-serif; font-size: 15px; line-height: 1.5; color: #1f2933; max-width: 40rem;">
+${body}
+<p style="color: #6b7280; font-size: 13px;">Sent by Beadbench, the bead-check logbook of your microscopy facility.</p>
+</body></html>`;
+}
+
+const ROLE_WORDS: Record<string, string> = {
+  admin: "an admin (people, tolerances and everything staff can do)",
+  staff: "facility staff (instruments, objectives and routine checks)",
+  researcher: "a researcher (status and logbooks, your own sample measurements)",
+  engineer: "a service engineer (the instruments of your service visits)",
+};
+
+export function invitationMail(input: {
+  facilityName: string;
+  inviterName: string | null;
+  role: string;
+  link: string;
+  expiresAt: Date;
+}): RenderedMail {
+  const who = input.inviterName ? `${input.inviterName} has invited you` : "You have been invited";
+  const role = ROLE_WORDS[input.role] ?? input.role;
+  const until = input.expiresAt.toISOString().slice(0, 10);
+  const subject = `Invitation to ${input.facilityName} on Beadbench`;
+  const text = [
+    `${who} to join ${input.facilityName} on Beadbench as ${role}.`,
+    "",
+    "Open this link to choose your name and password:",
+    input.link,
+    "",
+    `The link works once and until ${until}. If you did not expect this message, you can ignore it.`,
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>${escapeHtml(who)} to join <strong>${escapeHtml(input.facilityName)}</strong> on Beadbench as ${escapeHtml(role)}.</p>
+<p><a href="${escapeHtml(input.link)}">Accept the invitation</a></p>
+<p>Or copy this address into your browser:<br><code>${escapeHtml(input.link)}</code></p>
+<p>The link works once and until ${escapeHtml(until)}. If you did not expect this message, you can ignore it.</p>`,
+  );
+  return { subject, text, html };
+}
+
+function section(title: string, items: ReminderItem[]): { text: string[]; html: string } {
+  if (items.length === 0) return { text: [], html: "" };
+  return {
+    text: [`${title}:`, ...items.map((i) => `  - ${i.line}`), ""],
+    html: `<h3 style="margin-bottom: 0.25rem;">${escapeHtml(title)}</h3>
+<ul>${items.map((i) => `<li>${escapeHtml(i.line)}</li>`).join("")}</ul>`,
+  };
+}
+
+export function reminderDigestMail(input: {
+  facilityName: string;
+  reminders: CheckReminders;
+  dashboardUrl: string;
+  day: string;
+}): RenderedMail {
+  const { overdue, dueSoon, neverChecked } = input.reminders;
+  const counts = [
+    overdue.length ? `${overdue.length} overdue` : null,
+    dueSoon.length ? `${dueSoon.length} due this week` : null,
+    neverChecked.length ? `${neverChecked.length} never checked` : null,
+  ].filter(Boolean);
+  const subject = `Bead checks for ${input.facilityName}: ${counts.join(", ")}`;
+  const parts = [
+    section("Overdue", overdue),
+    section("Due within 7 days", dueSoon),
+    section("No check recorded yet", neverChecked),
+  ];
+  const text = [
+    `Bead checks to plan at ${input.facilityName} (${input.day}).`,
+    "",
+    ...parts.flatMap((p) => p.text),
+    `Status and logbooks: ${input.dashboardUrl}`,
+    "",
+    "You receive this digest as admin or staff of the facility; it is sent at most once a day, only when a check is due.",
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>Bead checks to plan at <strong>${escapeHtml(input.facilityName)}</strong> (${escapeHtml(input.day)}).</p>
+${parts.map((p) => p.html).join("\n")}
+<p><a href="${escapeHtml(input.dashboardUrl)}">Open the dashboard</a> for status and logbooks.</p>
+<p style="color: #6b7280; font-size: 13px;">You receive this digest as admin or staff of the facility; it is sent at most once a day, only when a check is due.</p>`,
+  );
+  return { subject, text, html };
+}
