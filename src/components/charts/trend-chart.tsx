@@ -126,11 +126,12 @@ export function TrendChart({ title, points, currentEpoch, specLimit, chart, even
       data={data}
       layout={{
         ...baseLayout,
-        height: 320,
+        height: 340,
         title: { text: title, font: { size: 13 } },
         margin: { l: 55, r: 20, t: 60, b: 50 },
         xaxis: { ...axis("acquired"), type: "date" },
-        yaxis: { ...axis("measured / theoretical FWHM"), rangemode: "tozero" },
+        yaxis: axis("measured / theoretical FWHM"),
+        legend: { ...baseLayout.legend, y: -0.35 },
         shapes,
         annotations,
       }}

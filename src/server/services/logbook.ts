@@ -117,8 +117,14 @@ export function buildTrend(
   const inEpoch = points.filter((p) => p.epoch === currentEpoch);
   const series = (k: "lateralRatio" | "axialRatio") =>
     inEpoch.filter((p) => p[k] != null).map((p) => ({ id: p.measurementId, value: p[k]! }));
-  const lateral = computeControlChart(series("lateralRatio"));
-  const axial = computeControlChart(series("axialRatio"));
+  // Phase I / Phase II: the epoch's first checks (a baseline block of at least 5,
+  // growing to 20 as history accumulates) set the limits that later checks are
+  // judged against, so a slow drift cannot widen its own limits (QC-PRACTICE.md §3.4).
+  const baselineCount = (n: number) => (n <= 5 ? n : Math.max(5, Math.min(20, Math.floor(n / 2))));
+  const lat = series("lateralRatio");
+  const ax = series("axialRatio");
+  const lateral = computeControlChart(lat, { baselineCount: baselineCount(lat.length) });
+  const axial = computeControlChart(ax, { baselineCount: baselineCount(ax.length) });
 
   const yearAgo = now.getTime() - 12 * MONTH_MS;
   const recent = points.filter((p) => new Date(p.acquiredAt).getTime() >= yearAgo);

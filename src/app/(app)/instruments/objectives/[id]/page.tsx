@@ -9,6 +9,7 @@ import { getObjectiveOverview } from "@/server/services/objective-overview";
 import { can } from "@/server/auth/permissions";
 import { LogbookCharts } from "./_components/logbook-charts";
 import { EventForm } from "./_components/event-form";
+import { LimitsForm } from "./_components/limits-form";
 import { StatusBadge } from "@/components/status-badge";
 import { fmtDate, fmtNum } from "@/components/format";
 
@@ -53,6 +54,17 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
           label="Acceptance limits (meas./theory)"
           value={`lateral < ${fmtNum(o.lateralRatioLimit)}, axial < ${fmtNum(o.axialRatioLimit)}`}
         />
+        {can(actor, "instruments.manage") ? (
+          <div className="md:col-span-4">
+            <LimitsForm
+              objectiveId={o.id}
+              lateral={o.lateralRatioLimit}
+              axial={o.axialRatioLimit}
+              intervalDays={o.checkIntervalDays}
+              canTolerances={can(actor, "tolerances.manage")}
+            />
+          </div>
+        ) : null}
       </section>
       <section className="card space-y-3">
         <div className="flex flex-wrap items-baseline gap-4">
