@@ -6,9 +6,11 @@
  */
 import { getEnv } from "../env";
 import { closeDb } from "../server/db/client";
-import { ANALYZE_QUEUE, getBoss, stopBoss } from "../server/queue/boss";
+import { ANALYZE_QUEUE, REMINDERS_QUEUE, getBoss, scheduleReminders, stopBoss } from "../server/queue/boss";
+import { closeMailer } from "../server/mail/mailer";
 import { analyzeMeasurement } from "./handlers/analyze-measurement";
 import { cleanUpAbandonedUploads } from "./handlers/clean-up-uploads";
+import { sendReminders } from "./handlers/send-reminders";
 
 async function main() {
   getEnv(); // fail at boot on a bad environment
@@ -22,6 +24,15 @@ async function main() {
       }
     },
   );
+  // Daily reminder digests; a failure to schedule them must not stop the analyses.
+  try {
+    await scheduleReminders(boss);
+    await boss.work(REMINDERS_QUEUE, { pollingIntervalSeconds: 30, batchSize: 1 }, async (jobs) => {
+      for (const job of jobs) await sendReminders(job.data);
+    });
+  } catch (err) {
+    console.error("[worker] reminders not scheduled:", err instanceof Error ? err.message : err);
+  }
   const cleanup = setInterval(() => void cleanUpAbandonedUploads().catch(() => {}), 3600_000);
   void cleanUpAbandonedUploads().catch(() => {});
   console.log("[worker] ready: waiting for measurements");
@@ -33,6 +44,7 @@ async function main() {
     clearInterval(cleanup);
     console.log("[worker] stopping…");
     await stopBoss().catch(() => {});
+    closeMailer();
     await closeDb().catch(() => {});
     process.exit(0);
   };

@@ -6,6 +6,10 @@ import PgBoss from "pg-boss";
 import { getEnv } from "../../env";
 
 export const ANALYZE_QUEUE = "analyze-measurement";
+/** The daily reminder digests (one scheduled job sends every facility's digest). */
+export const REMINDERS_QUEUE = "send-reminders";
+/** Every day at 07:00 UTC. */
+export const REMINDERS_CRON = "0 7 * * *";
 
 const globalForBoss = globalThis as unknown as { beadbenchBoss?: Promise<PgBoss> };
 
@@ -38,4 +42,22 @@ export async function stopBoss(): Promise<void> {
   const pending = globalForBoss.beadbenchBoss;
   globalForBoss.beadbenchBoss = undefined;
   if (pending) await (await pending).stop({ graceful: true, wait: true, timeout: 20_000 });
+}
+
+/**
+ * Create the reminders queue if needed and (re)register its daily schedule.
+ * pg-boss keeps one schedule per queue name, so every worker calling this is
+ * harmless, and its clock monitoring sends one job per tick across all workers.
+ */
+export async function scheduleReminders(boss: PgBoss): Promise<void> {
+  if (!(await boss.getQueue(REMINDERS_QUEUE)))
+    await boss.createQueue(REMINDERS_QUEUE, {
+      name: REMINDERS_QUEUE,
+      // At most one digest run at a time; a failed run is retried a few minutes later.
+      policy: "singleton",
+      retryLimit: 2,
+      retryDelay: 300,
+      expireInSeconds: 15 * 60,
+    });
+  await boss.schedule(REMINDERS_QUEUE, REMINDERS_CRON, {}, { tz: "UTC" });
 }
