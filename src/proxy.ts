@@ -18,6 +18,7 @@ export const proxy = auth((req) => {
 });
 
 export const config = {
-  // Everything except sign-in, the API, Next's assets and public files.
-  matcher: ["/((?!sign-in|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)"],
+  // Everything except sign-in, invitation links (public: the token is the credential),
+  // the API, Next's assets and public files.
+  matcher: ["/((?!sign-in|invite/|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)"],
 };

@@ -13,7 +13,7 @@ import { insertAuditEntry } from "../db/queries/audit";
 import { getUserByEmail, getUserById } from "../db/queries/users";
 import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
-import { sendMail, type MailResult } from "../mail/mailer";
+import { mailDelivery, sendMail, type MailDelivery, type MailResult } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
 import { getEnv } from "../../env";
 import {
@@ -31,6 +31,12 @@ const DAY_MS = 86_400_000;
 
 function normalizeEmail(email: string): string {
   return email.trim().toLowerCase();
+}
+
+/** Where mail goes (SMTP or the outbox file), for the settings page to say so. */
+export function getMailDelivery(actor: Actor): MailDelivery {
+  requirePermission(actor, "settings.open");
+  return mailDelivery();
 }
 
 /** The public link of an invitation. */

@@ -3,8 +3,11 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { requireApiActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
+import { inviteUserSchema } from "@/contracts/invitations";
 import { AppError } from "@/server/http/errors";
+import { formToObject, validatedAction, type ActionState } from "@/server/http/validated-action";
 import { createApiToken } from "@/server/services/api-tokens";
+import { inviteUser, revokeInvitation } from "@/server/services/invitations";
 
 const schema = z.object({
   name: z.string().trim().min(1, "Give the token a name").max(80),
@@ -31,4 +34,26 @@ export async function createTokenAction(_prev: TokenState, form: FormData): Prom
     if (err instanceof AppError) return { error: err.message };
     return { error: "The token could not be created. Try again." };
   }
+}
+
+const invite = validatedAction(inviteUserSchema, async (actor, input) => {
+  await inviteUser(getDb(), actor, input);
+  revalidatePath("/settings");
+});
+
+export async function inviteAction(prev: ActionState, form: FormData) {
+  return invite(prev, form);
+}
+
+const revoke = validatedAction(
+  z.object({ id: z.uuid() }),
+  async (actor, input) => {
+    await revokeInvitation(getDb(), actor, input.id);
+    revalidatePath("/settings");
+  },
+  (f) => formToObject(f),
+);
+
+export async function revokeInvitationAction(prev: ActionState, form: FormData) {
+  return revoke(prev, form);
 }

@@ -5,8 +5,11 @@ import { can } from "@/server/auth/permissions";
 import { getDb } from "@/server/db/client";
 import { listPeople } from "@/server/services/people";
 import { listApiTokens } from "@/server/services/api-tokens";
+import { getMailDelivery, listInvitations } from "@/server/services/invitations";
+import { getLastReminder } from "@/server/services/reminders";
 import { fmtDate } from "@/components/format";
 import { TokenForm } from "./_components/token-form";
+import { InviteForm, RevokeInvitationButton } from "./_components/invite-form";
 
 export const metadata: Metadata = { title: "Settings" };
 
@@ -14,17 +17,21 @@ export default async function SettingsPage() {
   const { actor, facilityName } = await requirePageActor();
   if (!can(actor, "settings.open")) forbidden();
   const db = getDb();
-  const [people, tokens] = await Promise.all([
-    can(actor, "people.manage") ? listPeople(db, actor) : Promise.resolve([]),
+  const managesPeople = can(actor, "people.manage");
+  const [people, tokens, invitations, lastReminder] = await Promise.all([
+    managesPeople ? listPeople(db, actor) : Promise.resolve([]),
     listApiTokens(db, actor),
+    managesPeople ? listInvitations(db, actor) : Promise.resolve([]),
+    getLastReminder(db, actor),
   ]);
+  const delivery = getMailDelivery(actor);
   return (
     <div className="space-y-6">
       <div>
         <h1>Settings</h1>
         <p className="text-sm text-ink-soft">{facilityName}</p>
       </div>
-      {can(actor, "people.manage") ? (
+      {managesPeople ? (
         <section className="card">
           <h2 className="mb-3">People and roles</h2>
           <table className="data-table">
@@ -49,6 +56,91 @@ export default async function SettingsPage() {
           </table>
         </section>
       ) : null}
+      {delivery.mode === "outbox" ? (
+        <p
+          role="note"
+          className="rounded-md border border-paper-line bg-accent-soft/40 px-3 py-2 text-sm"
+          data-testid="mail-outbox-notice"
+        >
+          No mail server is set up (<code className="font-mono">SMTP_URL</code>): invitations and reminders
+          are not sent but written to <code className="font-mono break-all">{delivery.path}</code> on the
+          server.
+        </p>
+      ) : null}
+      {managesPeople ? (
+        <section className="card" aria-labelledby="invite-heading">
+          <h2 id="invite-heading" className="mb-1">
+            Invite someone
+          </h2>
+          <p className="mb-3 text-sm text-ink-soft">
+            We e-mail a link that works once, for 7 days. Inviting the same address again replaces the earlier
+            link. Someone who already has an account elsewhere keeps their password and gets this facility
+            added.
+          </p>
+          <InviteForm outbox={delivery.mode === "outbox"} />
+          <h3 className="mb-2 mt-5 text-sm font-semibold">Pending invitations</h3>
+          <table className="data-table">
+            <thead>
+              <tr>
+                <th>E-mail</th>
+                <th>Role</th>
+                <th>Invited by</th>
+                <th>Sent</th>
+                <th>Link valid until</th>
+                <th>
+                  <span className="sr-only">Actions</span>
+                </th>
+              </tr>
+            </thead>
+            <tbody>
+              {invitations.length === 0 ? (
+                <tr>
+                  <td colSpan={6} className="text-ink-soft">
+                    No pending invitations.
+                  </td>
+                </tr>
+              ) : (
+                invitations.map((i) => (
+                  <tr key={i.id}>
+                    <td>{i.email}</td>
+                    <td>{i.role}</td>
+                    <td>{i.invitedByName ?? "—"}</td>
+                    <td className="font-mono">{fmtDate(i.createdAt)}</td>
+                    <td className="font-mono">
+                      {fmtDate(i.expiresAt)}
+                      {i.expired ? <span className="ml-2 font-sans text-bad">expired</span> : null}
+                    </td>
+                    <td className="text-right">
+                      <RevokeInvitationButton id={i.id} email={i.email} />
+                    </td>
+                  </tr>
+                ))
+              )}
+            </tbody>
+          </table>
+        </section>
+      ) : null}
+      <section className="card" aria-labelledby="reminders-heading">
+        <h2 id="reminders-heading" className="mb-1">
+          Reminders
+        </h2>
+        <p className="text-sm text-ink-soft">
+          Every day at 07:00 UTC, admins and staff get one e-mail listing the bead checks that are overdue,
+          due within 7 days, or never recorded — only when there is something to plan, and at most once a day.
+          The interval is set per objective.
+        </p>
+        <p className="mt-2 text-sm">
+          {lastReminder ? (
+            <>
+              Last digest: <span className="font-mono">{fmtDate(lastReminder.sentAt)}</span>
+              {lastReminder.recipients != null ? ` to ${lastReminder.recipients} people` : ""}
+              {lastReminder.delivery === "outbox" ? " (written to the outbox file)" : ""}.
+            </>
+          ) : (
+            "No digest has been sent to this facility yet."
+          )}
+        </p>
+      </section>
       <section className="card">
         <h2 className="mb-1">API tokens</h2>
         <p className="mb-3 text-sm text-ink-soft">

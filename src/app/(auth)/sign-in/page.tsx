@@ -7,6 +7,7 @@ const REASONS: Record<string, string> = {
   expired: "Your session has expired. Sign in again to continue.",
   signed_out: "You have signed out.",
   no_facility: "Your account does not belong to any facility yet.",
+  invited: "You have joined the facility. Sign in with your e-mail address and password.",
 };
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ reason?: string }> }) {
