@@ -8,7 +8,14 @@ import type { Modality } from "../../lib/optics";
 import type { MeasurementParameters } from "../../lib/psf/run-measurement-pipeline";
 import type { CreateMeasurement, RerunMeasurement } from "../../contracts/measurements";
 import type { Db } from "../db/client";
-import { beadResults, instruments, measurements, objectives, type Measurement } from "../db/schema";
+import {
+  beadResults,
+  instruments,
+  logbookEvents,
+  measurements,
+  objectives,
+  type Measurement,
+} from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { listAssignedInstrumentIds } from "../db/queries/service-visits";
 import { requirePermission, type Actor, type Permission } from "../auth/permissions";
@@ -287,4 +294,36 @@ export async function rerunMeasurement(db: Db, actor: Actor, id: string, input: 
   });
   await queueOrFail(db, created.id);
   return { id: created.id, status: created.status, version: created.version };
+}
+
+/**
+ * Make a finished check the start of a new baseline epoch: its purpose becomes
+ * "baseline" and a baseline event is logged just before its acquisition time.
+ */
+export async function markAsBaseline(db: Db, actor: Actor, id: string) {
+  requirePermission(actor, "baselines.manage");
+  const row = await getMeasurementRow(db, actor, id);
+  if (row.status !== "done")
+    throw new AppError("conflict", "Only a finished measurement can become a baseline.");
+  if (row.purpose === "sample")
+    throw new AppError("unprocessable", "A researcher's sample measurement cannot be an objective baseline.");
+  await db.transaction(async (tx) => {
+    await tx.update(measurements).set({ purpose: "baseline" }).where(eq(measurements.id, id));
+    await tx.insert(logbookEvents).values({
+      facilityId: actor.facilityId,
+      objectiveId: row.objectiveId,
+      kind: "baseline_start",
+      note: "Marked as the baseline of a new epoch.",
+      occurredAt: new Date(row.acquiredAt.getTime() - 1000),
+      createdBy: actor.userId,
+    });
+    await insertAuditEntry(tx, {
+      facilityId: actor.facilityId,
+      userId: actor.userId,
+      action: "measurement.baseline",
+      targetType: "measurement",
+      targetId: id,
+    });
+  });
+  return { id, purpose: "baseline" as const };
 }

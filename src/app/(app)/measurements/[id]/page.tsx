@@ -5,6 +5,7 @@ import { requirePageActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
 import { getMeasurement } from "@/server/services/measurements";
+import { can } from "@/server/auth/permissions";
 import { MeasurementView } from "./_components/measurement-view";
 
 export const metadata: Metadata = { title: "Measurement" };
@@ -20,5 +21,5 @@ export default async function MeasurementPage({ params }: { params: Promise<{ id
     if (err instanceof AppError && err.code === "not_found") notFound();
     throw err;
   }
-  return <MeasurementView id={id} />;
+  return <MeasurementView id={id} canBaseline={can(actor, "baselines.manage")} />;
 }

@@ -12,6 +12,7 @@ import {
 import { DepthProfileChart, IntensityChart } from "@/components/charts/depth-profile-chart";
 import { PsfSections, decodeFloat32 } from "@/components/charts/psf-sections";
 import { BeadTable } from "./bead-table";
+import { BeadViewer } from "./bead-viewer";
 import { TroubleshootingChecklist } from "./troubleshooting-checklist";
 
 const STAGES = ["queued", "reading", "detecting", "fitting", "modelling", "saving"];
@@ -36,7 +37,7 @@ function fmt(x: number | null | undefined, d = 3) {
   return x == null || !Number.isFinite(x) ? "—" : x.toFixed(d);
 }
 
-export function MeasurementView({ id }: { id: string }) {
+export function MeasurementView({ id, canBaseline }: { id: string; canBaseline: boolean }) {
   const { data: m, error, isLoading } = useMeasurement(id);
   const done = m?.status === "done";
   const { data: beads } = useBeads(id, done);
@@ -45,6 +46,13 @@ export function MeasurementView({ id }: { id: string }) {
 
   if (isLoading) return <p className="text-sm text-ink-soft">Loading…</p>;
   if (error || !m) return <p className="text-sm text-bad">{error?.message ?? "Not found."}</p>;
+
+  async function markBaseline() {
+    setBusy(true);
+    await fetch(`/api/v1/measurements/${id}/baseline`, { method: "POST" });
+    await qc.invalidateQueries({ queryKey: measurementKeys.one(id) });
+    setBusy(false);
+  }
 
   async function cancel() {
     setBusy(true);
@@ -64,9 +72,21 @@ export function MeasurementView({ id }: { id: string }) {
           v{m.version} · acquired {m.acquiredAt.slice(0, 10)}
         </span>
         {done ? (
-          <a className="btn-quiet ml-auto" href={`/api/v1/measurements/${id}/beads?format=csv`}>
-            Beads as CSV
-          </a>
+          <div className="ml-auto flex gap-2">
+            {canBaseline && m.purpose !== "baseline" && m.purpose !== "sample" ? (
+              <button
+                className="btn-quiet"
+                onClick={markBaseline}
+                disabled={busy}
+                data-testid="mark-baseline"
+              >
+                Mark as baseline
+              </button>
+            ) : null}
+            <a className="btn-quiet" href={`/api/v1/measurements/${id}/beads?format=csv`}>
+              Beads as CSV
+            </a>
+          </div>
         ) : null}
       </div>
 
@@ -141,6 +161,7 @@ function Results({
   params: Record<string, unknown>;
   id: string;
 }) {
+  const [selected, setSelected] = useState<number | null>(null);
   const psf = useMemo(
     () =>
       s.averagedPsf
@@ -266,8 +287,16 @@ function Results({
       ) : null}
       <section className="card">
         <h2 className="mb-2">Beads</h2>
-        <BeadTable beads={beads} measurementId={id} />
+        <p className="mb-2 text-xs text-ink-soft">
+          Click a row to see that bead; untick beads to re-run without them.
+        </p>
+        <BeadTable beads={beads} measurementId={id} onSelect={setSelected} selectedId={selected} />
       </section>
+      {selected != null ? (
+        <section className="card">
+          <BeadViewer measurementId={id} beadId={selected} />
+        </section>
+      ) : null}
     </>
   );
 }
