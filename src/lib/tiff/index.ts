@@ -23,3 +23,5 @@ export { decodePackbits } from "./decode-packbits";
 export { decodeDeflate } from "./decode-deflate";
 export type { InflateFunction } from "./decode-deflate";
 export { applyPredictor } from "./apply-predictor";
+export { maxProjection, toGreyThumbnail } from "./max-projection";
+export type { FloatImage, GreyThumbnail, GreyThumbnailOptions } from "./max-projection";
