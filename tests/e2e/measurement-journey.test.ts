@@ -64,4 +64,38 @@ describe("staff runs the monthly check of an objective", () => {
     await screenshot(page, "staff-measurement-result");
     expect(s.problems).toEqual([]);
   });
+
+  it("lists the uploaded stack with a projection thumbnail and opens its page", async () => {
+    const { page } = s; // still signed in as staff from the journey above
+    await page.goto(`${BASE_URL}/stacks`);
+    await page.waitForSelector("[data-testid=stack-table] tbody tr");
+    expect(await page.locator("[data-testid=stack-table] tbody tr").count()).toBeGreaterThanOrEqual(1);
+    const thumb = page.locator("[data-testid=stack-thumbnail]").first();
+    await thumb.scrollIntoViewIfNeeded();
+    await page.waitForFunction(
+      () => {
+        const img = document.querySelector<HTMLImageElement>("[data-testid=stack-thumbnail]");
+        return !!img && img.complete && img.naturalWidth > 0;
+      },
+      undefined,
+      { timeout: 30_000 },
+    );
+    expect(await thumb.evaluate((img: HTMLImageElement) => img.naturalWidth)).toBeGreaterThan(0);
+    await screenshot(page, "stacks-list");
+
+    await page.locator("[data-testid=stack-table] tbody tr a").first().click();
+    await page.waitForURL(/\/stacks\/[0-9a-f-]{36}$/);
+    await page.waitForSelector("[data-testid=stack-facts]");
+    await page.waitForFunction(
+      () => {
+        const img = document.querySelector<HTMLImageElement>("[data-testid=stack-projection]");
+        return !!img && img.complete && img.naturalWidth > 0;
+      },
+      undefined,
+      { timeout: 30_000 },
+    );
+    await expect(page.getByTestId("stack-metadata").textContent()).resolves.toContain("z-step (µm)");
+    await screenshot(page, "stack-detail");
+    expect(s.problems).toEqual([]);
+  });
 });

@@ -3,10 +3,10 @@ import { BASE_URL, demoCredentials, openBrowser, screenshot, type Role, type Ses
 import { SignInPage } from "./pages/sign-in-page";
 
 const NAV: Record<Role, string[]> = {
-  admin: ["Dashboard", "Instruments", "Medium planner", "Service visits", "Settings"],
-  staff: ["Dashboard", "Instruments", "Medium planner", "Service visits", "Settings"],
-  researcher: ["Dashboard", "Instruments", "Medium planner"],
-  engineer: ["Dashboard", "Instruments", "Medium planner", "Service visits"],
+  admin: ["Dashboard", "Instruments", "Stacks", "Medium planner", "Service visits", "Settings"],
+  staff: ["Dashboard", "Instruments", "Stacks", "Medium planner", "Service visits", "Settings"],
+  researcher: ["Dashboard", "Instruments", "Stacks", "Medium planner"],
+  engineer: ["Dashboard", "Instruments", "Stacks", "Medium planner", "Service visits"],
 };
 
 describe("sign-in journeys", () => {

@@ -60,6 +60,7 @@ export function navigationFor(role: Role): Array<{ href: string; label: string }
   const items = [
     { href: "/dashboard", label: "Dashboard" },
     { href: "/instruments", label: "Instruments" },
+    { href: "/stacks", label: "Stacks" },
     { href: "/planner", label: "Medium planner" },
     { href: "/service-visits", label: "Service visits" },
     { href: "/settings", label: "Settings" },
@@ -67,6 +68,7 @@ export function navigationFor(role: Role): Array<{ href: string; label: string }
   return items.filter((i) => {
     if (i.href === "/settings") return can({ role }, "settings.open");
     if (i.href === "/service-visits") return role !== "researcher";
+    if (i.href === "/stacks") return can({ role }, "stacks.upload");
     return true;
   });
 }

@@ -13,6 +13,12 @@ import { getEnv } from "../../env";
 import type { Db } from "../db/client";
 import { measurements, stacks, type Stack } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
+import { listAssignedInstrumentIds } from "../db/queries/service-visits";
+import {
+  getStackUploaderName,
+  listMeasurementsByStack,
+  listStacksWithUsageByFacility,
+} from "../db/queries/stacks";
 import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
 import { stackKey, type ObjectStorage } from "../storage/storage";
@@ -188,4 +194,82 @@ export async function deleteStack(db: Db, storage: ObjectStorage, actor: Actor, 
     });
   });
   await storage.delete(row.storageKey).catch(() => {});
+}
+
+/** A row of the stack list: the stack, who uploaded it, and how many measurements use it. */
+export interface StackListItem extends StackDto {
+  uploadedByName: string | null;
+  measurementCount: number;
+}
+
+/** The stacks the actor may see (a researcher: their own), newest first, with uploader and usage. */
+export async function listStacksWithUsage(db: Db, actor: Actor): Promise<StackListItem[]> {
+  requirePermission(actor, "stacks.upload");
+  const rows = await listStacksWithUsageByFacility(db, {
+    facilityId: actor.facilityId,
+    uploadedBy: actor.role === "researcher" ? actor.userId : undefined,
+    limit: 200,
+  });
+  return rows.map((r) => ({
+    ...toStackDto(r.stack),
+    uploadedByName: r.uploadedByName,
+    measurementCount: r.measurementCount,
+  }));
+}
+
+/** One measurement that uses a stack, as the stack page lists it. */
+export interface StackMeasurementItem {
+  id: string;
+  purpose: string;
+  status: string;
+  channel: number;
+  version: number;
+  acquiredAt: string;
+  createdByName: string | null;
+  objectiveName: string;
+}
+
+/**
+ * Everything the stack page shows: the stack, its metadata record (each value with its source),
+ * the uploader, and the measurements using it. `measurementCount` counts them all (it is why a
+ * delete is refused); `measurements` lists only those the actor may open — the same rule as
+ * reading a measurement (a researcher: not others' sample measurements; an engineer: assigned
+ * instruments in the current visit only).
+ */
+export async function getStackDetail(db: Db, actor: Actor, id: string) {
+  requirePermission(actor, "stacks.upload");
+  const row = await getStackRow(db, actor, id);
+  const [uploadedByName, used] = await Promise.all([
+    getStackUploaderName(db, { userId: row.uploadedBy }),
+    listMeasurementsByStack(db, { facilityId: actor.facilityId, stackId: row.id }),
+  ]);
+  let visible = used;
+  if (actor.role === "researcher") {
+    visible = used.filter((m) => m.purpose !== "sample" || m.createdBy === actor.userId);
+  } else if (actor.role === "engineer") {
+    const assigned = await listAssignedInstrumentIds(db, {
+      facilityId: actor.facilityId,
+      engineerId: actor.userId,
+      at: new Date(),
+    });
+    visible = used.filter((m) => m.instrumentId != null && assigned.includes(m.instrumentId));
+  }
+  const measurementsDto: StackMeasurementItem[] = visible.map((m) => ({
+    id: m.id,
+    purpose: m.purpose,
+    status: m.status,
+    channel: m.channel,
+    version: m.version,
+    acquiredAt: m.acquiredAt.toISOString(),
+    createdByName: m.createdByName,
+    objectiveName: m.objectiveName,
+  }));
+  return {
+    ...toStackDto(row),
+    sampleType: row.sampleType,
+    metadata: row.metadata as TiffMetadata | null,
+    uploadedByName,
+    measurementCount: used.length,
+    measurements: measurementsDto,
+  };
 }
