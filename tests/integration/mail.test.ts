@@ -14,6 +14,7 @@ import { closeMailer } from "@/server/mail/mailer";
 import { acceptInvitation, getInvitation, inviteUser, listInvitations } from "@/server/services/invitations";
 import { sendFacilityReminder, sendReminderDigests } from "@/server/services/reminders";
 import { verifyCredentials } from "@/server/services/sign-in";
+import { sendReminders } from "@/worker/handlers/send-reminders";
 import { makeFacility, type TestFacility } from "./helpers";
 
 interface ReceivedMail {
@@ -285,6 +286,11 @@ describe("reminder digests", () => {
       .from(auditLog)
       .where(and(eq(auditLog.facilityId, d.facilityId), eq(auditLog.action, "reminder.sent")));
     expect(logged).toHaveLength(1);
+  });
+
+  it("lets the scheduled job's handler drop a malformed payload without throwing", async () => {
+    await expect(sendReminders({ now: "not a date" })).resolves.toEqual([]);
+    await expect(sendReminders("nonsense")).resolves.toEqual([]);
   });
 
   it("skips a facility with nothing due", async () => {
