@@ -213,8 +213,10 @@ describe("invitations", () => {
   it("adds a membership to an existing account without changing its password", async () => {
     const [other] = await getDb().select().from(users).where(eq(users.id, b.actors.researcher.userId));
     await inviteUser(getDb(), a.actors.admin, { email: other!.email, role: "staff" });
-    const token = linkIn(await waitForMail((m) => m.to.includes(other!.email))).split("/invite/")[1]!;
+    const mail = await waitForMail((m) => m.to.includes(other!.email));
+    const token = linkIn(mail).split("/invite/")[1]!;
     expect((await getInvitation(getDb(), token)).hasAccount).toBe(true);
+    expect(mail.body).toContain("You already have an account");
     const r = await acceptInvitation(getDb(), { token, password: "ignored for existing accounts" });
     expect(r).toMatchObject({ userId: other!.id, createdAccount: false });
     const [after] = await getDb().select().from(users).where(eq(users.id, other!.id));

@@ -42,6 +42,8 @@ export function invitationMail(input: {
   role: string;
   link: string;
   expiresAt: Date;
+  /** The address already has an account: accepting only adds the facility. */
+  hasAccount?: boolean;
 }): RenderedMail {
   const who = input.inviterName ? `${input.inviterName} has invited you` : "You have been invited";
   const role = ROLE_WORDS[input.role] ?? input.role;
@@ -50,7 +52,9 @@ export function invitationMail(input: {
   const text = [
     `${who} to join ${input.facilityName} on Beadbench as ${role}.`,
     "",
-    "Open this link to choose your name and password:",
+    input.hasAccount
+      ? "You already have an account; open this link to add the facility to it:"
+      : "Open this link to choose your name and password:",
     input.link,
     "",
     `The link works once and until ${until}. If you did not expect this message, you can ignore it.`,

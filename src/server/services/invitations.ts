@@ -70,7 +70,7 @@ export async function inviteUser(
   const token = randomBytes(32).toString("base64url");
   const expiresAt = new Date(now.getTime() + INVITATION_DAYS * DAY_MS);
 
-  const { invitation, facilityName, inviterName } = await db.transaction(async (tx) => {
+  const { invitation, facilityName, inviterName, hasAccount } = await db.transaction(async (tx) => {
     // Serialise invitations to one address of one facility, so "replace" cannot leave two pending.
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`invite:${actor.facilityId}:${email}`}))`);
     if (await isMember(tx, actor.facilityId, email)) {
@@ -110,10 +110,12 @@ export async function inviteUser(
       .from(facilities)
       .where(eq(facilities.id, actor.facilityId));
     const inviter = await getUserById(tx, { id: actor.userId });
+    const hasAccount = Boolean(await getUserByEmail(tx, { email }));
     return {
       invitation: row!,
       facilityName: facility?.name ?? "your facility",
       inviterName: inviter?.name ?? null,
+      hasAccount,
     };
   });
 
@@ -123,6 +125,7 @@ export async function inviteUser(
     role: invitation.role,
     link: invitationLink(token),
     expiresAt,
+    hasAccount,
   });
   let sent: MailResult;
   try {
