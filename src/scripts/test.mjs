@@ -65,6 +65,8 @@ const env = {
   PG_PORT: String(pg.port),
   DEMO_PASSWORDS_FILE: passwordsFile,
   DEMO_HISTORY: "0",
+  // Small enough that the oversize-upload tests can exceed it cheaply.
+  MAX_UPLOAD_BYTES: String(20 * 1024 * 1024),
   E2E_BASE_URL: appUrl,
   E2E_PASSWORDS_FILE: passwordsFile,
   E2E_SCREENSHOT_DIR: path.join(ROOT, "test-results", "screenshots"),

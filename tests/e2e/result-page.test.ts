@@ -1,12 +1,12 @@
 /**
  * On a finished measurement: open a bead in the viewer (sections read back from
  * the stored stack, fitted profile overlaid) and mark the check as a baseline.
- * Runs after api.test.ts, which leaves a finished measurement behind.
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { and, desc, eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import { closeDb, getDb } from "@/server/db/client";
-import { logbookEvents, measurements } from "@/server/db/schema";
+import { logbookEvents } from "@/server/db/schema";
+import { finishedMeasurement, tokenFor } from "./api-client";
 import { BASE_URL, demoCredentials, openBrowser, screenshot, type Session } from "./browser";
 import { SignInPage } from "./pages/sign-in-page";
 
@@ -21,13 +21,8 @@ afterAll(async () => {
 
 describe("the result page", () => {
   it("shows a chosen bead and turns the check into a baseline", async () => {
-    const [m] = await getDb()
-      .select()
-      .from(measurements)
-      .where(and(eq(measurements.status, "done"), eq(measurements.purpose, "routine")))
-      .orderBy(desc(measurements.createdAt))
-      .limit(1);
-    expect(m, "a finished routine measurement from an earlier journey").toBeTruthy();
+    const done = await finishedMeasurement(await tokenFor("staff@larkspur.example"), 44);
+    const m = { id: done.measurementId, objectiveId: done.objectiveId };
     const { page } = s;
     const signIn = new SignInPage(page);
     await signIn.goto();

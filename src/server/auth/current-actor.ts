@@ -8,6 +8,7 @@ import { redirect } from "next/navigation";
 import { getDb } from "../db/client";
 import { actorForToken, actorForUser, type ActorContext } from "../services/actor";
 import { AppError } from "../http/errors";
+import { hitRateLimit } from "../http/rate-limit";
 import type { Actor } from "./permissions";
 import { auth } from "./auth";
 
@@ -37,6 +38,16 @@ export async function requireApiActor(): Promise<Actor> {
   if (authz) {
     const m = /^Bearer\s+(\S+)$/i.exec(authz);
     if (!m) throw new AppError("invalid_token", "Use the header 'Authorization: Bearer <token>'.");
+    // Per token (valid or not) and per address: scripts get 600 requests a minute.
+    const who = h.get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
+    const byToken = hitRateLimit(`token:${m[1]!.slice(0, 16)}`, 600, 60_000);
+    const byAddress = hitRateLimit(`token-ip:${who}`, 1200, 60_000);
+    if (!byToken.ok || !byAddress.ok) {
+      throw new AppError(
+        "rate_limited",
+        `Too many requests; try again in ${Math.max(byToken.retryAfterS, byAddress.retryAfterS)} s.`,
+      );
+    }
     return actorForToken(getDb(), m[1]!);
   }
   const session = await auth();

@@ -19,10 +19,10 @@ export function errorResponse(err: unknown): NextResponse {
     const message = issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join("; ");
     return NextResponse.json({ error: { code: "bad_request", message, details: issues } }, { status: 400 });
   }
-  // Unknown errors: generic message out, details only in the server log.
-  console.error("[api] unexpected error:", err instanceof Error ? `${err.name}: ${err.message}` : err);
-  const dbDown =
-    err instanceof Error && /ECONNREFUSED|Connection terminated|connect ETIMEDOUT/.test(err.message);
+  const dbDown = isDatabaseUnavailable(err);
+  // Unknown errors: generic message out; details in the server log, but never query
+  // parameters (they can hold hashes or user input).
+  console.error(dbDown ? "[api] database unavailable:" : "[api] unexpected error:", describeForLog(err));
   return NextResponse.json(
     {
       error: dbDown
@@ -31,6 +31,40 @@ export function errorResponse(err: unknown): NextResponse {
     },
     { status: dbDown ? 503 : 500 },
   );
+}
+
+/** True when the error (or one it wraps) says PostgreSQL is down, restarting or unreachable. */
+export function isDatabaseUnavailable(err: unknown): boolean {
+  for (let e = err, depth = 0; e && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+    const code = (e as { code?: unknown }).code;
+    if (
+      typeof code === "string" &&
+      ["ECONNREFUSED", "ECONNRESET", "ETIMEDOUT", "57P01", "57P02", "57P03", "08006", "08001"].includes(code)
+    ) {
+      return true;
+    }
+    const message = e instanceof Error ? e.message : "";
+    if (
+      /ECONNREFUSED|Connection terminated|connect ETIMEDOUT|the database system is (starting up|shutting down)/.test(
+        message,
+      )
+    )
+      return true;
+  }
+  return false;
+}
+
+function describeForLog(err: unknown): string {
+  if (!(err instanceof Error)) return String(err);
+  const first = err.message
+    .split("\n")[0]!
+    .replace(/params:.*$/, "")
+    .slice(0, 300);
+  const cause =
+    err.cause instanceof Error
+      ? ` (cause: ${err.cause.name}: ${err.cause.message.split("\n")[0]!.slice(0, 200)})`
+      : "";
+  return `${err.name}: ${first}${cause}`;
 }
 
 type Handler<C> = (req: Request, ctx: C) => Promise<Response>;

@@ -2,7 +2,9 @@
 // Sign-in and sign-out as server actions. Validation happens in the Credentials
 // provider (auth.ts); here we only turn its failure codes into plain messages.
 import { AuthError } from "next-auth";
+import { headers } from "next/headers";
 import { signIn, signOut } from "@/server/auth/auth";
+import { hitRateLimit } from "@/server/http/rate-limit";
 
 export interface SignInState {
   error?: string;
@@ -22,6 +24,11 @@ const MESSAGES: Record<string, string> = {
 
 export async function signInAction(_prev: SignInState, formData: FormData): Promise<SignInState> {
   const email = String(formData.get("email") ?? "");
+  // Besides the per-account lock-out: at most 30 attempts a minute from one address.
+  const who = (await headers()).get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
+  if (!hitRateLimit(`sign-in:${who}`, 30, 60_000).ok) {
+    return { error: "Too many sign-in attempts from this address. Wait a minute and try again.", email };
+  }
   try {
     await signIn("credentials", {
       email,

@@ -1,0 +1,158 @@
+/**
+ * The product holding up: an upload dropped half-way resumes and registers nothing
+ * until complete; oversize bodies are refused; hostile text is stored and shown as
+ * text; security headers and cookie flags are set; a database restart makes
+ * requests fail cleanly (503) and the app recovers by itself.
+ */
+import { execFileSync } from "node:child_process";
+import { createHash } from "node:crypto";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { eq } from "drizzle-orm";
+import { closeDb, getDb } from "@/server/db/client";
+import { stacks } from "@/server/db/schema";
+import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
+import { api, tokenFor } from "./api-client";
+import { BASE_URL, demoCredentials, openBrowser, type Session } from "./browser";
+import { SignInPage } from "./pages/sign-in-page";
+
+let token: string;
+beforeAll(async () => {
+  token = await tokenFor("staff@larkspur.example");
+});
+afterAll(async () => {
+  await closeDb();
+});
+
+describe("resumable upload (tus 1.0.0)", () => {
+  it("resumes after a dropped connection and registers the stack only when complete", async () => {
+    const bytes = makeDemoBeadStack({
+      na: 1.4,
+      immersionRi: 1.518,
+      sampleRi: 1.518,
+      emissionWavelengthNm: 520,
+      seed: 77,
+    }).tiff;
+    const sha = createHash("sha256").update(bytes).digest("hex");
+    const tus = { "Tus-Resumable": "1.0.0" };
+    const created = await api(token, "POST", "/api/v1/uploads", {
+      headers: {
+        ...tus,
+        "Upload-Length": String(bytes.length),
+        "Upload-Metadata": `filename ${Buffer.from("resume.tif").toString("base64")}`,
+      },
+    });
+    // Source: tus resumable upload protocol 1.0.0, "Creation" extension — 201 with a Location
+    expect(created.status).toBe(201);
+    const location = created.headers.get("location")!;
+    const path = new URL(location, BASE_URL).pathname;
+    const half = Math.floor(bytes.length / 2);
+    const first = await api(token, "PATCH", path, {
+      headers: { ...tus, "Upload-Offset": "0", "Content-Type": "application/offset+octet-stream" },
+      body: bytes.slice(0, half),
+    });
+    expect(first.status).toBe(204);
+    // The connection "drops" here: nothing is registered for a partial file.
+    expect(await getDb().select().from(stacks).where(eq(stacks.sha256, sha))).toHaveLength(0);
+    const head = await api(token, "HEAD", path, { headers: tus });
+    expect(head.headers.get("upload-offset")).toBe(String(half));
+    const rest = await api(token, "PATCH", path, {
+      headers: { ...tus, "Upload-Offset": String(half), "Content-Type": "application/offset+octet-stream" },
+      body: bytes.slice(half),
+    });
+    expect(rest.status).toBe(200);
+    expect(rest.json.sha256).toBe(sha);
+    expect(await getDb().select().from(stacks).where(eq(stacks.sha256, sha))).toHaveLength(1);
+  });
+
+  it("refuses someone else's upload and bodies over the limit", async () => {
+    const tus = { "Tus-Resumable": "1.0.0" };
+    const created = await api(token, "POST", "/api/v1/uploads", {
+      headers: { ...tus, "Upload-Length": "1000" },
+    });
+    const path = new URL(created.headers.get("location")!, BASE_URL).pathname;
+    const other = await tokenFor("admin@larkspur.example");
+    const stolen = await api(other, "HEAD", path, { headers: tus });
+    expect(stolen.status).toBe(404);
+    const limit = Number(process.env.MAX_UPLOAD_BYTES ?? 0);
+    if (limit > 0 && limit < 64 * 1024 * 1024) {
+      const tooBig = await api(token, "POST", "/api/v1/uploads", {
+        headers: { ...tus, "Upload-Length": String(limit + 1) },
+      });
+      expect(tooBig.status).toBe(413);
+      const form = new FormData();
+      form.append("file", new Blob([new Uint8Array(limit + 1024)]), "big.tif");
+      const direct = await api(token, "POST", "/api/v1/stacks", { body: form });
+      expect(direct.status).toBe(413);
+    }
+  });
+});
+
+describe("hostile input", () => {
+  it("stores SQL/HTML-looking names as text and shows them escaped", async () => {
+    const name = `<img src=x onerror="window.__pwned=1">'; DROP TABLE instruments; --`;
+    const r = await api(token, "POST", "/api/v1/instruments", {
+      headers: { "Content-Type": "application/json" },
+      body: JSON.stringify({ name, modality: "widefield" }),
+    });
+    expect(r.status).toBe(201);
+    const s: Session = await openBrowser();
+    try {
+      const signIn = new SignInPage(s.page);
+      await signIn.goto();
+      const c = demoCredentials("staff");
+      await signIn.signIn(c.email, c.password);
+      await s.page.waitForURL(`${BASE_URL}/dashboard`);
+      await s.page.goto(`${BASE_URL}/instruments`);
+      const headings = await s.page.locator("[data-testid=instrument-card] h2").allTextContents();
+      expect(headings).toContain(name);
+      expect(
+        await s.page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned),
+      ).toBeUndefined();
+      // Session cookie flags: HttpOnly and SameSite=Lax (common practice; OWASP session management)
+      const cookie = (await s.context.cookies()).find((k) => k.name.includes("authjs.session-token"))!;
+      expect(cookie.httpOnly).toBe(true);
+      expect(cookie.sameSite).toBe("Lax");
+    } finally {
+      await s.close();
+    }
+  });
+
+  it("sends security headers on pages", async () => {
+    const res = await fetch(`${BASE_URL}/sign-in`);
+    expect(res.headers.get("x-frame-options")).toBe("DENY");
+    expect(res.headers.get("x-content-type-options")).toBe("nosniff");
+    expect(res.headers.get("content-security-policy")).toContain("frame-ancestors 'none'");
+    expect(res.headers.get("x-powered-by")).toBeNull();
+  });
+});
+
+describe("database restart", () => {
+  it("answers 503 while PostgreSQL is down and recovers without a restart of the app", async () => {
+    const pg = (fn: string) =>
+      execFileSync(
+        process.execPath,
+        [
+          "-e",
+          `import("./src/scripts/lib/postgres.mjs").then((m) => { const pg = m.ensurePostgres(".data"); ${fn} })`,
+        ],
+        {
+          stdio: "pipe",
+        },
+      );
+    expect((await api(token, "GET", "/api/v1/instruments")).status).toBe(200);
+    pg("m.stopPostgres(pg);");
+    try {
+      const down = await api(token, "GET", "/api/v1/instruments");
+      expect(down.status).toBe(503);
+      expect(down.json.error?.code).toBe("unavailable");
+    } finally {
+      pg("");
+    }
+    let status = 0;
+    for (let i = 0; i < 20 && status !== 200; i++) {
+      status = (await api(token, "GET", "/api/v1/instruments")).status;
+      if (status !== 200) await new Promise((r) => setTimeout(r, 500));
+    }
+    expect(status).toBe(200);
+  });
+});
