@@ -93,7 +93,29 @@ export interface MeasurementSummary {
     dataBase64: string;
   } | null;
   metadata: { format: string; warnings: Array<{ code: string; message: string }>; compression: string };
+  field?: {
+    fieldRadiusUm: number;
+    centralFraction: number;
+    central: RegionStats;
+    full: RegionStats;
+    plane: {
+      n: number;
+      tiltUmPerUm: number | null;
+      planarityPeakToValleyUm: number | null;
+      planarityRmsUm: number | null;
+    };
+    quadratic: { n: number; planarityPeakToValleyUm: number | null; planarityRmsUm: number | null };
+    fwhmXVsRadius: { slope: number | null; slopeLow: number | null; slopeHigh: number | null };
+  };
   provenance: { engineVersion: string; parameters: Record<string, unknown>; stack: Record<string, unknown> };
+}
+
+export interface RegionStats {
+  count: number;
+  medianFwhmXUm: number | null;
+  medianFwhmYUm: number | null;
+  medianFwhmZUm: number | null;
+  medianLateralAsymmetry: number | null;
 }
 
 export interface PublicBead {

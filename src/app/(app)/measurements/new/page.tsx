@@ -5,13 +5,34 @@ import { can } from "@/server/auth/permissions";
 import { getDb } from "@/server/db/client";
 import { listInstruments, listObjectives } from "@/server/services/instruments";
 import { listMediaForActor } from "@/server/services/media";
+import { getStack } from "@/server/services/stacks";
+import { AppError } from "@/server/http/errors";
+import { z } from "zod";
 import { CautionNote } from "@/components/caution-note";
 import { NewMeasurementFlow, type ObjectiveOption } from "./_components/new-measurement-flow";
 
 export const metadata: Metadata = { title: "New measurement" };
 
-export default async function NewMeasurementPage() {
+const prefillSchema = z.object({
+  stack: z.uuid().optional().catch(undefined),
+  objective: z.uuid().optional().catch(undefined),
+  purpose: z
+    .enum(["routine", "baseline", "sample", "pre-service", "post-service"])
+    .optional()
+    .catch(undefined),
+  medium: z.string().max(80).optional().catch(undefined),
+  ri: z.coerce.number().min(1).max(2).optional().catch(undefined),
+  em: z.coerce.number().min(250).max(1700).optional().catch(undefined),
+});
+
+export default async function NewMeasurementPage({
+  searchParams,
+}: {
+  searchParams: Promise<Record<string, string | undefined>>;
+}) {
   const { actor } = await requirePageActor();
+  // Links from a stack page or the planner prefill the form (?stack=…&objective=…&purpose=sample&medium=…).
+  const prefill = prefillSchema.parse(await searchParams);
   const purposes = (
     [
       ["routine", "measurements.routine"],
@@ -30,6 +51,15 @@ export default async function NewMeasurementPage() {
     listInstruments(db, actor),
     listMediaForActor(db, actor),
   ]);
+  let initialStack = null;
+  if (prefill.stack) {
+    try {
+      const { metadata: _metadata, ...dto } = await getStack(db, actor, prefill.stack);
+      initialStack = dto;
+    } catch (err) {
+      if (!(err instanceof AppError)) throw err; // a foreign or unknown id just means "no prefill"
+    }
+  }
   const options: ObjectiveOption[] = objectives
     .filter((o) => !o.retired)
     .map((o) => {
@@ -55,6 +85,14 @@ export default async function NewMeasurementPage() {
       </div>
       <CautionNote kind="acquisition" />
       <NewMeasurementFlow
+        initialStack={initialStack}
+        prefill={{
+          objectiveId: prefill.objective,
+          purpose: prefill.purpose,
+          medium: prefill.medium,
+          sampleRi: prefill.ri,
+          emissionWavelengthNm: prefill.em,
+        }}
         objectives={options}
         purposes={purposes}
         media={media.map((m) => ({ id: m.id, name: m.name, ri: m.refractiveIndexD23, kind: m.kind }))}

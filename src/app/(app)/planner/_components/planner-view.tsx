@@ -209,8 +209,18 @@ export function PlannerView({ objectives, media }: Props) {
             </ol>
             <p className="mt-3 text-sm">
               Ready to check it?{" "}
-              <Link href="/measurements/new">Upload beads embedded in your own medium</Link> as a sample
-              measurement and compare the measured depth profile with this prediction.
+              <Link
+                href={`/measurements/new?${new URLSearchParams({
+                  purpose: "sample",
+                  em: String(emission),
+                  ...(data.ranking[0]?.objective.id ? { objective: data.ranking[0].objective.id } : {}),
+                  ...(medium === "custom" ? { ri: customRi } : { medium }),
+                }).toString()}`}
+                data-testid="planner-to-measurement"
+              >
+                Upload beads embedded in your own medium
+              </Link>{" "}
+              as a sample measurement and compare the measured depth profile with this prediction.
             </p>
           </section>
           <div className="grid gap-6 lg:grid-cols-2">

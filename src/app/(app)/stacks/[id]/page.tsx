@@ -66,12 +66,9 @@ export default async function StackPage({
           </p>
         </div>
         <div className="ml-auto flex flex-col items-end gap-1">
-          <Link href="/measurements/new" className="btn" data-testid="measure-stack">
+          <Link href={`/measurements/new?stack=${s.id}`} className="btn" data-testid="measure-stack">
             Measure this stack
           </Link>
-          <span className="max-w-xs text-right text-xs text-ink-soft">
-            Choose the same file again there: identical bytes are recognised and not stored twice.
-          </span>
         </div>
       </div>
 

@@ -277,6 +277,7 @@ function Results({
           ) : null}
         </section>
       </div>
+      {s.field ? <FieldCard field={s.field} /> : null}
       {psf ? (
         <section className="card">
           <PsfSections
@@ -308,5 +309,57 @@ function Figure({ label, value, sub }: { label: string; value: string; sub: stri
       <div className="font-mono text-xl">{value}</div>
       <div className="text-xs text-ink-soft">{sub}</div>
     </div>
+  );
+}
+
+function FieldCard({ field }: { field: NonNullable<MeasurementSummary["field"]> }) {
+  const row = (label: string, r: NonNullable<MeasurementSummary["field"]>["central"]) => (
+    <tr>
+      <td>{label}</td>
+      <td className="num">{r.count}</td>
+      <td className="num">{fmt(r.medianFwhmXUm)}</td>
+      <td className="num">{fmt(r.medianFwhmYUm)}</td>
+      <td className="num">{fmt(r.medianFwhmZUm)}</td>
+      <td className="num">{fmt(r.medianLateralAsymmetry, 2)}</td>
+    </tr>
+  );
+  return (
+    <section className="card" data-testid="field-card">
+      <h2 className="mb-2">Across the field</h2>
+      <div className="grid gap-4 lg:grid-cols-[2fr_1fr]">
+        <table className="data-table">
+          <thead>
+            <tr>
+              <th>Region</th>
+              <th className="num">Beads</th>
+              <th className="num">FWHM x (µm)</th>
+              <th className="num">FWHM y (µm)</th>
+              <th className="num">FWHM z (µm)</th>
+              <th className="num">Lateral asym. (min/max)</th>
+            </tr>
+          </thead>
+          <tbody>
+            {row(`central ${Math.round(field.centralFraction * 100)} % of the field radius`, field.central)}
+            {row("full field", field.full)}
+          </tbody>
+        </table>
+        <dl className="grid grid-cols-2 gap-x-3 gap-y-1 text-sm">
+          <dt className="text-ink-soft">Best-focus tilt</dt>
+          <dd className="font-mono">
+            {field.plane.tiltUmPerUm != null ? `${(field.plane.tiltUmPerUm * 1000).toFixed(1)} nm/µm` : "—"}
+          </dd>
+          <dt className="text-ink-soft">Planarity (peak–valley, plane)</dt>
+          <dd className="font-mono">{fmt(field.plane.planarityPeakToValleyUm)} µm</dd>
+          <dt className="text-ink-soft">Planarity (peak–valley, curved)</dt>
+          <dd className="font-mono">{fmt(field.quadratic.planarityPeakToValleyUm)} µm</dd>
+          <dt className="text-ink-soft">Lateral FWHM vs radius</dt>
+          <dd className="font-mono">
+            {field.fwhmXVsRadius.slope != null
+              ? `${(field.fwhmXVsRadius.slope * 1000).toFixed(2)} nm/µm`
+              : "—"}
+          </dd>
+        </dl>
+      </div>
+    </section>
   );
 }

@@ -6,7 +6,7 @@ import { useForm } from "react-hook-form";
 import { z } from "zod";
 import { checkSampling, theoreticalFwhm } from "@/lib/optics";
 import type { StackDto } from "@/contracts/stacks";
-import type { MediumOption, ObjectiveOption } from "./new-measurement-flow";
+import type { FormPrefill, MediumOption, ObjectiveOption } from "./new-measurement-flow";
 
 const num = (min: number, max: number, msg: string) =>
   z.coerce.number({ message: msg }).min(min, msg).max(max, msg);
@@ -41,27 +41,36 @@ export function MeasurementForm({
   objectives,
   purposes,
   media,
+  prefill = {},
 }: {
   stack: StackDto;
   objectives: ObjectiveOption[];
   purposes: string[];
   media: MediumOption[];
+  prefill?: FormPrefill;
 }) {
   const router = useRouter();
   const [submitError, setSubmitError] = useState<string | null>(null);
-  const first = objectives[0];
+  const first = objectives.find((o) => o.id === prefill.objectiveId) ?? objectives[0];
+  const medium =
+    prefill.sampleRi !== undefined
+      ? "custom"
+      : prefill.medium && media.some((m) => m.id === prefill.medium)
+        ? prefill.medium
+        : "matched";
   const form = useForm<FormValues, unknown, Parsed>({
     resolver: zodResolver(formSchema),
     defaultValues: {
       objectiveId: first?.id ?? "",
-      purpose: purposes[0] ?? "routine",
+      purpose:
+        prefill.purpose && purposes.includes(prefill.purpose) ? prefill.purpose : (purposes[0] ?? "routine"),
       channel: 0,
       modality: first?.modality ?? "widefield",
-      emissionWavelengthNm: 520,
+      emissionWavelengthNm: prefill.emissionWavelengthNm ?? 520,
       excitationWavelengthNm: first?.modality === "widefield" ? "" : 488,
       pinholeAu: first?.defaultPinholeAu ?? (first?.modality === "confocal" ? 1 : ""),
-      medium: "matched",
-      sampleRi: "",
+      medium,
+      sampleRi: prefill.sampleRi ?? "",
       temperatureC: 23,
       beadDiameterNm: 100,
       coverslipSlice: "",

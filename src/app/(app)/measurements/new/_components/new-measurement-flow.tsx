@@ -22,14 +22,29 @@ export interface MediumOption {
   kind: "library" | "custom";
 }
 
-export function NewMeasurementFlow(props: {
+export interface FormPrefill {
+  objectiveId?: string;
+  purpose?: string;
+  medium?: string;
+  sampleRi?: number;
+  emissionWavelengthNm?: number;
+}
+
+export function NewMeasurementFlow({
+  initialStack,
+  ...props
+}: {
   objectives: ObjectiveOption[];
   purposes: string[];
   media: MediumOption[];
+  initialStack?: StackDto | null;
+  prefill?: FormPrefill;
 }) {
   const { state, start, pause, resume, cancel } = useResumableUpload();
   const [file, setFile] = useState<File | null>(null);
-  const stack: StackDto | null = state.phase === "done" ? state.stack : null;
+  // A stack chosen on its own page (?stack=…) stands until the user uploads another.
+  const stack: StackDto | null =
+    state.phase === "done" ? state.stack : state.phase === "idle" ? (initialStack ?? null) : null;
 
   return (
     <div className="grid gap-6 lg:grid-cols-[1fr_2fr]">
