@@ -136,7 +136,7 @@ export function rankObjectives(
     const match =
       mismatch < 0.01
         ? "immersion matches the sample RI"
-        : `immersion RI ${o.immersionRi} vs sample ${sampleRi} (Δn ${mismatch.toFixed(3)})`;
+        : `immersion RI ${o.immersionRi.toFixed(3)} vs sample ${sampleRi.toFixed(3)} (Δn ${mismatch.toFixed(3)})`;
     const lead =
       i === 0
         ? "Best choice: the narrowest axial PSF at the deepest planned depth"
