@@ -1,5 +1,5 @@
 /**
- * Demo history: ten months of invented monthly checks for four demo objectives,
+ * Demo history: about a year of invented monthly checks for four demo objectives,
  * each a real synthetic bead stack (Gibson–Lanni rendered, broadened by a
  * per-check "degradation") run through the real analysis by the worker. The
  * story: the 63× oil lens drifts as its immersion oil ages, the 40× air lens is
@@ -13,7 +13,15 @@ import { and, eq } from "drizzle-orm";
 import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
 import { makeRng } from "../../fixtures/synthetic-stack";
 import type { Db } from "../server/db/client";
-import { facilities, measurements, memberships, objectives, users } from "../server/db/schema";
+import {
+  facilities,
+  measurements,
+  memberships,
+  objectives,
+  serviceVisitInstruments,
+  serviceVisits,
+  users,
+} from "../server/db/schema";
 import type { Actor } from "../server/auth/permissions";
 import { addLogbookEvent } from "../server/services/logbook";
 import { createMeasurement } from "../server/services/measurements";
@@ -36,6 +44,8 @@ interface Plan {
   }>;
   /** Days before today of the newest check. */
   lastCheckDaysAgo: number;
+  /** A past service visit spanning these months' checks (as found → as left). */
+  visit?: { from: number; to: number; title: string };
 }
 
 const PLANS: Plan[] = [
@@ -61,7 +71,7 @@ const PLANS: Plan[] = [
     emissionWavelengthNm: 520,
     excitationWavelengthNm: 488,
     modality: "confocal",
-    degradation: [1.12, 1.13, 1.11, 1.14, 1.12, null, 1.13, 1.12, 1.14, 1.12],
+    degradation: [1.12, 1.13, 1.11, 1.14, 1.12, 1.13, 1.11, 1.12, null, 1.13, 1.12, 1.14, 1.12],
     purposes: { 0: "baseline" },
     lastCheckDaysAgo: 12,
   },
@@ -69,7 +79,7 @@ const PLANS: Plan[] = [
     serial: "OBJ-A40-3301",
     emissionWavelengthNm: 520,
     modality: "widefield",
-    degradation: [1.1, 1.12, 1.11, 1.1, 1.13, 1.11, 1.12, 1.1],
+    degradation: [1.1, 1.12, 1.11, 1.1, 1.13, 1.11, 1.12, 1.1, 1.11, 1.12, 1.1, 1.12],
     purposes: { 0: "baseline" },
     lastCheckDaysAgo: 45,
   },
@@ -77,12 +87,13 @@ const PLANS: Plan[] = [
     serial: "OBJ-O100-5521",
     emissionWavelengthNm: 520,
     modality: "widefield",
-    degradation: [1.1, 1.11, 1.12, 1.14, 1.17, 1.62, 1.1, 1.11, 1.12, 1.1],
-    purposes: { 0: "baseline", 5: "pre-service", 6: "post-service" },
+    degradation: [1.1, 1.11, 1.1, 1.12, 1.11, 1.12, 1.14, 1.17, 1.62, 1.1, 1.11, 1.12, 1.1],
+    purposes: { 0: "baseline", 8: "pre-service", 9: "post-service" },
     events: [
-      { monthIndex: 5, kind: "cleaned", note: "Cleaned after the failed check; no improvement (demo)." },
-      { monthIndex: 6, kind: "service", note: "Front element replaced under the service contract (demo)." },
+      { monthIndex: 8, kind: "cleaned", note: "Cleaned after the failed check; no improvement (demo)." },
+      { monthIndex: 9, kind: "service", note: "Front element replaced under the service contract (demo)." },
     ],
+    visit: { from: 8, to: 9, title: "Repair of the 100× oil objective (demo)" },
     lastCheckDaysAgo: 3,
   },
 ];
@@ -124,6 +135,29 @@ export async function seedDemoHistory(db: Db, storage: ObjectStorage): Promise<n
       const n = plan.degradation.length;
       const dateOf = (i: number) =>
         new Date(Date.now() - (plan.lastCheckDaysAgo + (n - 1 - i) * 30) * 86_400_000);
+      if (plan.visit && obj.instrumentId) {
+        const [engineer] = await db
+          .select({ id: users.id })
+          .from(users)
+          .innerJoin(memberships, eq(memberships.userId, users.id))
+          .where(and(eq(memberships.facilityId, facility.id), eq(memberships.role, "engineer")));
+        const [visit] = await db
+          .insert(serviceVisits)
+          .values({
+            facilityId: facility.id,
+            engineerId: engineer?.id ?? null,
+            title: plan.visit.title,
+            startsAt: new Date(dateOf(plan.visit.from).getTime() - 2 * 3600_000),
+            endsAt: new Date(dateOf(plan.visit.to).getTime() + 2 * 3600_000),
+            report:
+              "As found: axial FWHM well above the limit after cleaning. Front element replaced; as left within limits (invented demo report).",
+            signedOffAt: new Date(dateOf(plan.visit.to).getTime() + 3 * 3600_000),
+          })
+          .returning();
+        await db
+          .insert(serviceVisitInstruments)
+          .values({ visitId: visit!.id, instrumentId: obj.instrumentId });
+      }
       for (const ev of plan.events ?? []) {
         await addLogbookEvent(db, { ...staff, role: "admin" }, obj.id, {
           kind: ev.kind,
