@@ -30,10 +30,12 @@ const NOTES = {
   },
 } as const;
 
-export function CautionNote({ kind }: { kind: keyof typeof NOTES }) {
+/** `open` renders the note expanded (e.g. on a printed page, where nothing can be clicked). */
+export function CautionNote({ kind, open = false }: { kind: keyof typeof NOTES; open?: boolean }) {
   const note = NOTES[kind];
   return (
     <details
+      open={open}
       className="rounded-lg border border-watch/30 bg-watch/5 px-4 py-3 text-sm"
       data-testid="caution-note"
     >

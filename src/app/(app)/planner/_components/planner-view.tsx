@@ -1,7 +1,7 @@
 "use client";
 import Link from "next/link";
 import { usePathname, useRouter, useSearchParams } from "next/navigation";
-import { useMemo } from "react";
+import { useEffect, useMemo, useRef } from "react";
 import { useQuery } from "@tanstack/react-query";
 import type { PlannerResponse } from "@/contracts/planner";
 import { Plot, axis, baseLayout, plotConfig } from "@/components/charts/plot";
@@ -25,9 +25,16 @@ export function PlannerView({ objectives, media }: Props) {
   const modality = params.get("modality") ?? "widefield";
   const temperature = Number(params.get("t") ?? 23);
 
+  // Two quick edits (e.g. medium, then depth) happen before the router has re-rendered
+  // with the first: build each on the newest query we asked for, not on the rendered one.
+  const pending = useRef<string | null>(null);
+  useEffect(() => {
+    if (pending.current === params.toString()) pending.current = null;
+  }, [params]);
   function set(next: Record<string, string>) {
-    const q = new URLSearchParams(params.toString());
+    const q = new URLSearchParams(pending.current ?? params.toString());
     for (const [k, v] of Object.entries(next)) q.set(k, v);
+    pending.current = q.toString();
     router.replace(`${pathname}?${q.toString()}`, { scroll: false });
   }
 
@@ -193,9 +200,16 @@ export function PlannerView({ objectives, media }: Props) {
               {data.ranking.map((r) => {
                 const p = data.predictions.find((x) => x.objective.name === r.objective.name);
                 return (
-                  <li key={r.objective.name} className="flex gap-3">
+                  <li
+                    key={r.objective.name}
+                    className="flex gap-3"
+                    data-testid="planner-rank-item"
+                    data-objective-id={r.objective.id ?? ""}
+                  >
                     <span className="font-mono font-semibold">{r.rank}.</span>
-                    <span className="min-w-48 font-semibold">{r.objective.name}</span>
+                    <span className="min-w-48 font-semibold" data-testid="planner-rank-name">
+                      {r.objective.name}
+                    </span>
                     <span className="text-ink-soft">{r.reason}</span>
                     <span className="ml-auto whitespace-nowrap font-mono text-xs">
                       axial +25 % at{" "}
@@ -222,9 +236,25 @@ export function PlannerView({ objectives, media }: Props) {
               </Link>{" "}
               as a sample measurement and compare the measured depth profile with this prediction.
             </p>
+            <p className="mt-1 text-sm">
+              <Link
+                href={`/planner/print?${new URLSearchParams({
+                  objectives: selected.join(","),
+                  medium,
+                  ...(medium === "custom" ? { ri: customRi } : {}),
+                  em: String(emission),
+                  depth: String(maxDepth),
+                  modality,
+                  t: String(temperature),
+                }).toString()}`}
+                data-testid="planner-print-link"
+              >
+                One-page summary for printing
+              </Link>
+            </p>
           </section>
           <div className="grid gap-6 lg:grid-cols-2">
-            <section className="card">
+            <section className="card" data-testid="planner-chart-axial">
               <h2>Axial FWHM</h2>
               <Plot
                 data={series("axialFwhmUm")}
@@ -239,7 +269,7 @@ export function PlannerView({ objectives, media }: Props) {
                 style={{ width: "100%" }}
               />
             </section>
-            <section className="card">
+            <section className="card" data-testid="planner-chart-lateral">
               <h2>Lateral FWHM</h2>
               <Plot
                 data={series("lateralFwhmUm")}
@@ -254,7 +284,7 @@ export function PlannerView({ objectives, media }: Props) {
                 style={{ width: "100%" }}
               />
             </section>
-            <section className="card">
+            <section className="card" data-testid="planner-chart-peak">
               <h2>Peak intensity (relative to an ideal, matched lens)</h2>
               <Plot
                 data={series("peakRelative")}
@@ -269,7 +299,7 @@ export function PlannerView({ objectives, media }: Props) {
                 style={{ width: "100%" }}
               />
             </section>
-            <section className="card">
+            <section className="card" data-testid="planner-chart-focal-shift">
               <h2>Focal shift</h2>
               <Plot
                 data={(data.predictions ?? []).map((p, i) => ({
