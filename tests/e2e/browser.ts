@@ -46,6 +46,8 @@ export async function openBrowser(): Promise<Session> {
   const page = context.pages()[0] ?? (await context.newPage());
   const problems: string[] = [];
   page.on("console", (msg) => {
+    // `next dev` (only) logs this under our CSP; a production build never does.
+    if (msg.text().includes("React requires eval() in development mode")) return;
     if (msg.type() === "error") problems.push(`console: ${msg.text()}`);
   });
   page.on("pageerror", (err) => problems.push(`page error: ${err.message}`));
