@@ -18,7 +18,9 @@ export const proxy = auth((req) => {
 });
 
 export const config = {
-  // Everything except sign-in, invitation links (public: the token is the credential),
-  // the API, Next's assets and public files.
-  matcher: ["/((?!sign-in|invite/|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)"],
+  // Everything except sign-in, invitation and password-reset links (public: the token
+  // is the credential), the reset request form, the API, Next's assets and public files.
+  matcher: [
+    "/((?!sign-in|invite/|forgot-password|reset-password/|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)",
+  ],
 };

@@ -113,3 +113,59 @@ ${parts.map((p) => p.html).join("\n")}
   );
   return { subject, text, html };
 }
+
+export function passwordResetMail(input: { name: string; link: string; validMinutes: number }): RenderedMail {
+  const subject = "Choose a new Beadbench password";
+  const text = [
+    `Hello ${input.name},`,
+    "",
+    "Someone (hopefully you) asked to choose a new password for your Beadbench account. Open this link to do so:",
+    input.link,
+    "",
+    `The link works once, for ${input.validMinutes} minutes. If you did not ask for it, ignore this message: your password stays as it is.`,
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>Hello ${escapeHtml(input.name)},</p>
+<p>Someone (hopefully you) asked to choose a new password for your Beadbench account.</p>
+<p><a href="${escapeHtml(input.link)}">Choose a new password</a></p>
+<p>Or copy this address into your browser:<br><code>${escapeHtml(input.link)}</code></p>
+<p>The link works once, for ${input.validMinutes} minutes. If you did not ask for it, ignore this message: your password stays as it is.</p>`,
+  );
+  return { subject, text, html };
+}
+
+export function outOfSpecAlertMail(input: {
+  facilityName: string;
+  objectiveName: string;
+  instrumentName: string | null;
+  acquiredAt: Date;
+  headline: string;
+  evidence: string[];
+  measurementUrl: string;
+}): RenderedMail {
+  const lens = input.instrumentName
+    ? `${input.objectiveName} on ${input.instrumentName}`
+    : input.objectiveName;
+  const day = input.acquiredAt.toISOString().slice(0, 10);
+  const subject = `Out of spec: ${lens} (${input.facilityName})`;
+  const text = [
+    `The bead check of ${lens} acquired on ${day} is out of spec.`,
+    "",
+    input.headline,
+    ...input.evidence.map((e) => `  - ${e}`),
+    "",
+    `Result and troubleshooting steps: ${input.measurementUrl}`,
+    "",
+    "You receive this message as admin or staff of the facility; it is sent once per out-of-spec check.",
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>The bead check of <strong>${escapeHtml(lens)}</strong> acquired on ${escapeHtml(day)} is out of spec.</p>
+<p>${escapeHtml(input.headline)}</p>
+<ul>${input.evidence.map((e) => `<li>${escapeHtml(e)}</li>`).join("")}</ul>
+<p><a href="${escapeHtml(input.measurementUrl)}">Open the result</a> for the evidence and the troubleshooting steps.</p>
+<p style="color: #6b7280; font-size: 13px;">You receive this message as admin or staff of the facility; it is sent once per out-of-spec check.</p>`,
+  );
+  return { subject, text, html };
+}

@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { SignInForm } from "./sign-in-form";
 
 export const metadata: Metadata = { title: "Sign in" };
@@ -8,6 +9,7 @@ const REASONS: Record<string, string> = {
   signed_out: "You have signed out.",
   no_facility: "Your account does not belong to any facility yet.",
   invited: "You have joined the facility. Sign in with your e-mail address and password.",
+  password_reset: "Your new password is saved. Sign in with it.",
 };
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ reason?: string }> }) {
@@ -43,6 +45,9 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
             </p>
           ) : null}
           <SignInForm />
+          <p className="mt-4 text-sm">
+            <Link href="/forgot-password">Forgot your password?</Link>
+          </p>
         </section>
       </div>
     </main>

@@ -45,6 +45,26 @@ export const invitations = pgTable(
   (t) => [index("invitations_facility_idx").on(t.facilityId)],
 );
 
+/**
+ * One-time password-reset links: only a SHA-256 of the token is kept. A link
+ * lasts an hour and works once (`usedAt`); requesting a new one deletes the
+ * user's unused links.
+ */
+export const passwordResets = pgTable(
+  "password_resets",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    tokenHash: text("token_hash").notNull().unique(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    usedAt: timestamp("used_at", { withTimezone: true }),
+    ...timestamps,
+  },
+  (t) => [index("password_resets_user_idx").on(t.userId)],
+);
+
 /** A dated visit by an engineer to some of a facility's instruments. */
 export const serviceVisits = pgTable(
   "service_visits",
