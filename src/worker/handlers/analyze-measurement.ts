@@ -15,6 +15,7 @@ import {
   saveResults,
 } from "../../server/services/analysis-runs";
 import type { StoredParameters } from "../../server/services/measurements";
+import { sendOutOfSpecAlert } from "../../server/services/alerts";
 import type { MeasurementPipelineResult } from "../../lib/psf/run-measurement-pipeline";
 
 export const analyzeJobSchema = z.object({ measurementId: z.uuid() });
@@ -72,6 +73,7 @@ export async function analyzeMeasurement(data: unknown, attempt: { retryCount: n
   const claimed = await claimMeasurement(db, measurementId);
   if (!claimed) return; // cancelled or already done: nothing to do
   const { row, storageKey } = claimed;
+  let saved: boolean;
   try {
     const bytes = await getStorage().getBytes(storageKey);
     // Copy into a buffer of its own so it can be transferred to the thread.
@@ -81,7 +83,7 @@ export async function analyzeMeasurement(data: unknown, attempt: { retryCount: n
       void reportProgress(db, row.id, STAGE_OF[stage] ?? stage, fraction).catch(() => {});
     });
     await reportProgress(db, row.id, "saving", 0);
-    await saveResults(db, row, result);
+    saved = await saveResults(db, row, result);
   } catch (err) {
     if (err instanceof InputFailure) {
       await failMeasurement(db, row.id, err.code, err.message);
@@ -103,5 +105,18 @@ export async function analyzeMeasurement(data: unknown, attempt: { retryCount: n
       await reportProgress(db, row.id, "retrying", 0).catch(() => {});
     }
     throw err;
+  }
+  if (saved) await alertIfOutOfSpec(row.id);
+}
+
+/** Mail admins and staff about a failing check; a mail problem is logged, never fails the analysis. */
+async function alertIfOutOfSpec(measurementId: string): Promise<void> {
+  try {
+    await sendOutOfSpecAlert(getDb(), measurementId);
+  } catch (err) {
+    console.error(
+      `[worker] out-of-spec alert for measurement ${measurementId} could not be sent:`,
+      err instanceof Error ? err.message : "unknown error",
+    );
   }
 }
