@@ -109,15 +109,25 @@ export async function patchObjective(db: Db, actor: Actor, id: string, input: Pa
       const inst = await getInstrumentById(tx, { facilityId: actor.facilityId, id: input.instrumentId });
       if (!inst) throw new AppError("unprocessable", "The instrument does not exist in this facility.");
     }
+    const old = await getObjectiveById(tx, { facilityId: actor.facilityId, id });
+    if (!old) throw notFound("Objective");
     const row = await updateObjective(tx, { facilityId: actor.facilityId, id, values: input });
     if (!row) throw notFound("Objective");
+    // "From what to what" for the audit log: only the fields this request changed.
+    const before: Record<string, unknown> = {};
+    const after: Record<string, unknown> = {};
+    for (const key of Object.keys(input) as Array<keyof PatchObjective>) {
+      if (input[key] === undefined || old[key] === row[key]) continue;
+      before[key] = old[key];
+      after[key] = row[key];
+    }
     await insertAuditEntry(tx, {
       facilityId: actor.facilityId,
       userId: actor.userId,
       action: "objective.update",
       targetType: "objective",
       targetId: id,
-      details: input,
+      details: { before, after },
     });
     return row;
   });
