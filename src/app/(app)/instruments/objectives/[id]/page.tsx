@@ -10,6 +10,7 @@ import { can } from "@/server/auth/permissions";
 import { LogbookCharts } from "./_components/logbook-charts";
 import { EventForm } from "./_components/event-form";
 import { LimitsForm } from "./_components/limits-form";
+import { StatusOnDate } from "./_components/status-on-date";
 import { StatusBadge } from "@/components/status-badge";
 import { fmtDate, fmtNum } from "@/components/format";
 
@@ -65,6 +66,14 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
             />
           </div>
         ) : null}
+      </section>
+      <section className="card space-y-3" aria-labelledby="status-on-date-heading">
+        <h2 id="status-on-date-heading">Status on a date</h2>
+        <p className="text-sm text-ink-soft">
+          The status as it was at the end of a day (UTC), from the checks and events recorded by then, with a
+          methods paragraph for a paper.
+        </p>
+        <StatusOnDate objectiveId={o.id} today={new Date().toISOString().slice(0, 10)} />
       </section>
       <section className="card space-y-3">
         <div className="flex flex-wrap items-baseline gap-4">
