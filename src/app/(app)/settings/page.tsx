@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { forbidden } from "next/navigation";
 import { requirePageActor } from "@/server/auth/current-actor";
 import { can } from "@/server/auth/permissions";
@@ -30,6 +31,12 @@ export default async function SettingsPage() {
       <div>
         <h1>Settings</h1>
         <p className="text-sm text-ink-soft">{facilityName}</p>
+        {managesPeople ? (
+          <p className="mt-2 flex gap-4 text-sm" data-testid="settings-admin-links">
+            <Link href="/settings/audit">Audit log</Link>
+            <Link href="/settings/mail">Captured mail (development)</Link>
+          </p>
+        ) : null}
       </div>
       {managesPeople ? (
         <section className="card">
