@@ -30,6 +30,14 @@ const envSchema = z.object({
       .default(4 * 1024 ** 3),
   ),
   MAX_STACK_VOXELS: z.preprocess(emptyAsUndefined, z.coerce.number().int().positive().default(400_000_000)),
+  /**
+   * Seconds an analysis job may stay active before pg-boss counts it as lost (its worker died) and
+   * retries it. Must exceed the longest analysis. Tests lower it to see a killed worker's job retried.
+   */
+  ANALYSIS_JOB_EXPIRE_SECONDS: z.preprocess(
+    emptyAsUndefined,
+    z.coerce.number().int().min(1).max(86_399).default(1800),
+  ),
 });
 
 export type Env = z.infer<typeof envSchema>;

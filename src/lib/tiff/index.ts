@@ -25,3 +25,5 @@ export type { InflateFunction } from "./decode-deflate";
 export { applyPredictor } from "./apply-predictor";
 export { maxProjection, toGreyThumbnail } from "./max-projection";
 export type { FloatImage, GreyThumbnail, GreyThumbnailOptions } from "./max-projection";
+export { buildOmeXml, writeOmeTiff } from "./write-ome-tiff";
+export type { OmeTiffVolume, WriteOmeTiffOptions } from "./write-ome-tiff";

@@ -8,8 +8,10 @@ import {
   createObjectiveSchema,
   patchObjectiveSchema,
 } from "../../contracts/instruments";
+import { createLogbookEventSchema } from "../../contracts/logbook";
 import { createMeasurementSchema, rerunMeasurementSchema } from "../../contracts/measurements";
 import { plannerRequestSchema } from "../../contracts/planner";
+import { createServiceVisitSchema, signOffSchema } from "../../contracts/service-visits";
 import { stackUploadMetaSchema } from "../../contracts/stacks";
 import { ERROR_STATUS } from "./errors";
 
@@ -44,6 +46,10 @@ const ok = (description: string) => ({
   content: { "application/json": { schema: { type: "object" } } },
 });
 const idParam = [{ name: "id", in: "path", required: true, schema: { type: "string", format: "uuid" } }];
+const binary = (description: string, mediaType: string) => ({
+  description,
+  content: { [mediaType]: { schema: { type: "string", format: "binary" } } },
+});
 
 export function buildOpenApiDocument(serverUrl: string) {
   return {
@@ -102,10 +108,65 @@ export function buildOpenApiDocument(serverUrl: string) {
           responses: { "204": { description: "Deleted" }, ...errors(401, 403, 404, 409) },
         },
       },
+      "/api/v1/stacks/{id}/thumbnail": {
+        get: {
+          summary: "Maximum-intensity projection of one channel as a grey PNG",
+          parameters: [
+            ...idParam,
+            { name: "channel", in: "query", schema: { type: "integer", minimum: 0, default: 0 } },
+            {
+              name: "size",
+              in: "query",
+              schema: { type: "integer", default: 256 },
+              description: "Longest side, px",
+            },
+          ],
+          responses: { "200": binary("PNG image", "image/png"), ...errors(400, 401, 404, 422) },
+        },
+      },
       "/api/v1/uploads": {
         post: {
-          summary: "Resumable upload (tus 1.0.0 protocol); the finishing PATCH returns the stack",
+          summary:
+            "Resumable upload (tus 1.0.0 protocol): create an upload; the finishing PATCH returns the stack",
           responses: { "201": { description: "Upload created" }, ...errors(401, 413) },
+        },
+        options: {
+          summary: "tus 1.0.0 capability discovery (Tus-Version, Tus-Extension, Tus-Max-Size)",
+          responses: { "204": { description: "Capabilities in the headers" } },
+        },
+      },
+      "/api/v1/uploads/{id}": {
+        head: {
+          summary: "tus: the offset reached by an upload (Upload-Offset header), to resume it",
+          parameters: [{ name: "id", in: "path", required: true, schema: { type: "string" } }],
+          responses: {
+            "200": { description: "Upload-Offset and Upload-Length headers" },
+            ...errors(401, 404),
+          },
+        },
+        patch: {
+          summary: "tus: append a chunk (application/offset+octet-stream); the last one registers the stack",
+          parameters: [{ name: "id", in: "path", required: true, schema: { type: "string" } }],
+          responses: {
+            "204": { description: "Chunk stored" },
+            "200": ok("Upload finished: the registered stack"),
+            ...errors(401, 404, 409, 413, 415, 422),
+          },
+        },
+        get: {
+          summary: "tus: read back the bytes received so far",
+          parameters: [{ name: "id", in: "path", required: true, schema: { type: "string" } }],
+          responses: { "200": binary("The uploaded bytes", "application/octet-stream"), ...errors(401, 404) },
+        },
+        delete: {
+          summary: "tus termination: abandon an upload",
+          parameters: [{ name: "id", in: "path", required: true, schema: { type: "string" } }],
+          responses: { "204": { description: "Deleted" }, ...errors(401, 404) },
+        },
+        options: {
+          summary: "tus 1.0.0 capability discovery",
+          parameters: [{ name: "id", in: "path", required: true, schema: { type: "string" } }],
+          responses: { "204": { description: "Capabilities in the headers" } },
         },
       },
       "/api/v1/measurements": {
@@ -130,6 +191,38 @@ export function buildOpenApiDocument(serverUrl: string) {
             { name: "format", in: "query", schema: { type: "string", enum: ["json", "csv"] } },
           ],
           responses: { "200": ok("Beads"), ...errors(400, 401, 404) },
+        },
+      },
+      "/api/v1/measurements/{id}/beads/{bead}": {
+        get: {
+          summary: "The voxels around one bead (orthogonal sections for the bead viewer)",
+          parameters: [
+            ...idParam,
+            { name: "bead", in: "path", required: true, schema: { type: "integer", minimum: 0 } },
+          ],
+          responses: { "200": ok("Bead sections"), ...errors(400, 401, 404, 409) },
+        },
+      },
+      "/api/v1/measurements/{id}/summary": {
+        get: {
+          summary:
+            "Summary record of a finished measurement (schema beadbench.summary/1; OpticalCalibration fields named after the 4DN-BINA-OME calibration extension; widths in µm)",
+          parameters: idParam,
+          responses: { "200": ok("Summary record"), ...errors(400, 401, 404, 409) },
+        },
+      },
+      "/api/v1/measurements/{id}/averaged-psf.ome.tif": {
+        get: {
+          summary: "Averaged PSF of a finished measurement as a 32-bit float OME-TIFF (voxel size in µm)",
+          parameters: idParam,
+          responses: { "200": binary("OME-TIFF", "image/tiff"), ...errors(400, 401, 404, 409) },
+        },
+      },
+      "/api/v1/measurements/{id}/baseline": {
+        post: {
+          summary: "Make a finished check the baseline of a new epoch for its objective",
+          parameters: idParam,
+          responses: { "200": ok("{ id, purpose }"), ...errors(400, 401, 403, 404, 409, 422) },
         },
       },
       "/api/v1/measurements/{id}/cancel": {
@@ -177,6 +270,64 @@ export function buildOpenApiDocument(serverUrl: string) {
           parameters: idParam,
           requestBody: json(patchObjectiveSchema),
           responses: { "200": ok("Updated"), ...errors(400, 401, 403, 404, 415, 422) },
+        },
+      },
+      "/api/v1/objectives/{id}/trend": {
+        get: {
+          summary: "The objective's history: checks, control limits, alarms and events",
+          parameters: idParam,
+          responses: { "200": ok("Trend"), ...errors(400, 401, 404) },
+        },
+      },
+      "/api/v1/objectives/{id}/status": {
+        get: {
+          summary: "The objective's status as it was on a given day, with a methods paragraph",
+          parameters: [
+            ...idParam,
+            { name: "date", in: "query", required: true, schema: { type: "string", format: "date" } },
+          ],
+          responses: { "200": ok("Status on that day"), ...errors(400, 401, 404) },
+        },
+      },
+      "/api/v1/objectives/{id}/events": {
+        post: {
+          summary: "Add a logbook event (cleaning, oil change, service, new bead slide, …)",
+          parameters: idParam,
+          requestBody: json(createLogbookEventSchema),
+          responses: { "201": ok("Created"), ...errors(400, 401, 403, 404, 415, 422) },
+        },
+      },
+      "/api/v1/service-visits": {
+        get: {
+          summary: "Service visits visible to you",
+          responses: { "200": ok("{ visits }"), ...errors(401, 403) },
+        },
+        post: {
+          summary: "Plan a service visit (engineer, instruments, time window)",
+          requestBody: json(createServiceVisitSchema),
+          responses: { "201": ok("Created"), ...errors(400, 401, 403, 404, 415, 422) },
+        },
+      },
+      "/api/v1/service-visits/{id}": {
+        get: {
+          summary: "A service visit's as-found/as-left report",
+          parameters: idParam,
+          responses: { "200": ok("Report"), ...errors(400, 401, 404) },
+        },
+      },
+      "/api/v1/service-visits/{id}/sign-off": {
+        post: {
+          summary: "Sign off a service visit with its report text",
+          parameters: idParam,
+          requestBody: json(signOffSchema),
+          responses: { "200": ok("{ id, signedOff }"), ...errors(400, 401, 403, 404, 409, 415, 422) },
+        },
+      },
+      "/api/v1/openapi.json": {
+        get: {
+          summary: "This document",
+          security: [],
+          responses: { "200": ok("OpenAPI 3.1 document") },
         },
       },
       "/api/v1/media": {

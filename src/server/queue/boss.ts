@@ -13,21 +13,50 @@ export const REMINDERS_CRON = "0 7 * * *";
 
 const globalForBoss = globalThis as unknown as { beadbenchBoss?: Promise<PgBoss> };
 
+/**
+ * How often pg-boss's maintenance (which fails expired active jobs into their retry) runs: a
+ * quarter of the analysis job expiry, capped at pg-boss's default of 120 s. With the default
+ * expiry (30 min) nothing changes; a short expiry (tests) gets a lost job noticed within seconds.
+ */
+export function maintenanceIntervalSeconds(expireInSeconds: number): number {
+  return Math.max(1, Math.min(120, Math.floor(expireInSeconds / 4)));
+}
+
+function analyzeQueueOptions(): PgBoss.Queue {
+  return {
+    name: ANALYZE_QUEUE,
+    // Crashes are retried with backoff; bad input is not (the handler completes the job
+    // after marking the measurement failed with the reason). A job whose worker died stays
+    // active until it expires; pg-boss's maintenance then fails it into a retry.
+    retryLimit: 3,
+    retryDelay: 5,
+    retryBackoff: true,
+    expireInSeconds: getEnv().ANALYSIS_JOB_EXPIRE_SECONDS,
+  };
+}
+
 export function getBoss(): Promise<PgBoss> {
   globalForBoss.beadbenchBoss ??= (async () => {
-    const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, schema: "pgboss", max: 4 });
+    const expire = getEnv().ANALYSIS_JOB_EXPIRE_SECONDS;
+    const boss = new PgBoss({
+      connectionString: getEnv().DATABASE_URL,
+      schema: "pgboss",
+      max: 4,
+      maintenanceIntervalSeconds: maintenanceIntervalSeconds(expire),
+    });
     boss.on("error", (err) => console.error("[queue]", err.message));
     await boss.start();
-    if (!(await boss.getQueue(ANALYZE_QUEUE)))
-      await boss.createQueue(ANALYZE_QUEUE, {
-        name: ANALYZE_QUEUE,
-        // Crashes are retried with backoff; bad input is not (the handler completes the job
-        // after marking the measurement failed with the reason).
-        retryLimit: 3,
-        retryDelay: 5,
-        retryBackoff: true,
-        expireInSeconds: 30 * 60,
-      });
+    const options = analyzeQueueOptions();
+    const existing = await boss.getQueue(ANALYZE_QUEUE);
+    // createQueue applies options only when it creates the queue: bring an existing one up to date.
+    if (!existing) await boss.createQueue(ANALYZE_QUEUE, options);
+    else if (
+      existing.expireInSeconds !== options.expireInSeconds ||
+      existing.retryLimit !== options.retryLimit ||
+      existing.retryDelay !== options.retryDelay ||
+      existing.retryBackoff !== options.retryBackoff
+    )
+      await boss.updateQueue(ANALYZE_QUEUE, options);
     return boss;
   })();
   return globalForBoss.beadbenchBoss;
@@ -35,7 +64,15 @@ export function getBoss(): Promise<PgBoss> {
 
 export async function enqueueAnalysis(measurementId: string): Promise<string | null> {
   const boss = await getBoss();
-  return boss.send(ANALYZE_QUEUE, { measurementId });
+  // The expiry is also set per job, so a process started with another value (e.g. a test) cannot
+  // change it for this job by updating the shared queue row in between.
+  return boss.send(
+    ANALYZE_QUEUE,
+    { measurementId },
+    {
+      expireInSeconds: getEnv().ANALYSIS_JOB_EXPIRE_SECONDS,
+    },
+  );
 }
 
 export async function stopBoss(): Promise<void> {

@@ -293,6 +293,27 @@ function Results({
         </p>
         <BeadTable beads={beads} measurementId={id} onSelect={setSelected} selectedId={selected} />
       </section>
+      <section className="card text-sm" data-testid="exports">
+        <h2 className="mb-2">Exports</h2>
+        <ul className="flex flex-wrap gap-x-4 gap-y-1">
+          <li>
+            <a href={`/api/v1/measurements/${id}/summary`}>Summary (JSON)</a>
+          </li>
+          <li>
+            <a href={`/api/v1/measurements/${id}/beads?format=csv`}>Beads (CSV)</a>
+          </li>
+          <li>
+            <a href={`/api/v1/measurements/${id}/beads?format=json`}>Beads (JSON)</a>
+          </li>
+          {s.averagedPsf ? (
+            <li>
+              <a href={`/api/v1/measurements/${id}/averaged-psf.ome.tif`} download>
+                Averaged PSF (OME-TIFF, 32-bit float)
+              </a>
+            </li>
+          ) : null}
+        </ul>
+      </section>
       {selected != null ? (
         <section className="card">
           <BeadViewer measurementId={id} beadId={selected} />
