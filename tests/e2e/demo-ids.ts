@@ -1,6 +1,6 @@
 /** Ids of the invented demo facility's rows, read from the database (tests create what else they need). */
 import { randomUUID } from "node:crypto";
-import { and, eq } from "drizzle-orm";
+import { and, eq, gte, lte } from "drizzle-orm";
 import { getDb } from "@/server/db/client";
 import { facilities, instruments, memberships, objectives, serviceVisits, users } from "@/server/db/schema";
 import { createApiToken } from "@/server/services/api-tokens";
@@ -35,18 +35,23 @@ export async function demoInstrument(name: string) {
   return i;
 }
 
-/** The demo engineer's service visit (the seed plans one around today). */
+/** The demo engineer's current service visit (the seed plans one around today; older ones are past). */
 export async function demoEngineerVisitId(): Promise<string> {
   const [engineer] = await getDb().select().from(users).where(eq(users.email, "engineer@larkspur.example"));
   const [v] = await getDb()
     .select()
     .from(serviceVisits)
     .where(
-      and(eq(serviceVisits.facilityId, await demoFacilityId()), eq(serviceVisits.engineerId, engineer!.id)),
+      and(
+        eq(serviceVisits.facilityId, await demoFacilityId()),
+        eq(serviceVisits.engineerId, engineer!.id),
+        lte(serviceVisits.startsAt, new Date()),
+        gte(serviceVisits.endsAt, new Date()),
+      ),
     )
     .orderBy(serviceVisits.startsAt)
     .limit(1);
-  if (!v) throw new Error("the demo engineer has no service visit");
+  if (!v) throw new Error("the demo engineer has no current service visit");
   return v.id;
 }
 
