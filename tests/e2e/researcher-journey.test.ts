@@ -111,6 +111,8 @@ describe("researcher checks their mounting medium", () => {
       .first()
       .evaluate((el) => ((el as unknown as { data?: unknown[] }).data ?? []).length);
     expect(traces).toBeGreaterThanOrEqual(2);
+    await page.waitForSelector("[data-testid=bead-table] tbody tr", { timeout: 30_000 });
+    expect(await page.locator("[data-testid=bead-table] tbody tr").count()).toBeGreaterThanOrEqual(6);
     await page.waitForTimeout(1500); // let Plotly finish drawing before the screenshot
     await screenshot(page, "researcher-result");
     expect(s.problems).toEqual([]);
