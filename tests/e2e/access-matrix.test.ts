@@ -44,6 +44,8 @@ interface Route {
   /** Expected status for the roles; anonymous and expired are always 401 unless `public`. */
   expect: Record<"admin" | "staff" | "researcher" | "engineer" | "other facility", number>;
   public?: boolean;
+  /** The route creates an objective: retire it afterwards so the demo's lists stay short. */
+  createsObjective?: boolean;
 }
 
 let seq = Date.now() % 100_000;
@@ -120,7 +122,7 @@ const ROUTES: Route[] = [
   { name: "create an instrument", method: "POST", path: () => "/api/v1/instruments",
     body: () => jsonBody({ name: "Access check stand (e2e)", modality: "widefield" }),
     expect: { admin: 201, staff: 201, researcher: 403, engineer: 403, "other facility": 201 } },
-  { name: "create an objective", method: "POST", path: () => "/api/v1/objectives",
+  { name: "create an objective", method: "POST", path: () => "/api/v1/objectives", createsObjective: true,
     body: () => jsonBody({ name: "10× / 0.30 air (e2e access check)", magnification: 10, na: 0.3, immersion: "air" }),
     expect: { admin: 201, staff: 201, researcher: 403, engineer: 403, "other facility": 201 } },
   { name: "edit an objective's check interval", method: "PATCH", path: (i) => `/api/v1/objectives/${i.objective}`,
@@ -158,6 +160,7 @@ const CELLS = ROUTES.flatMap((route) =>
 );
 
 const tokens = {} as Record<Caller, string | null>;
+const createdObjectives: Array<{ id: string; caller: Caller }> = [];
 const ids = {} as Ids;
 
 async function uploadAs(token: string): Promise<string> {
@@ -191,12 +194,17 @@ beforeAll(async () => {
   );
   expect(created.status).toBe(201);
   ids.objective = created.json.id as string;
+  createdObjectives.push({ id: ids.objective, caller: "staff" });
   ids.staffStack = await uploadAs(tokens.staff!);
   ids.researcherStack = await uploadAs(tokens.researcher!);
   ids.staffSample = await sampleAs(tokens.staff!, ids.staffStack);
   ids.researcherSample = await sampleAs(tokens.researcher!, ids.researcherStack);
 });
 afterAll(async () => {
+  // Retired, not deleted: the rows stay (with their audit entries) but leave the planner and dashboard.
+  for (const o of createdObjectives) {
+    await api(tokens[o.caller], "PATCH", `/api/v1/objectives/${o.id}`, jsonBody({ retired: true }));
+  }
   await closeDb();
 });
 
@@ -208,6 +216,7 @@ describe("access matrix over HTTP", () => {
     if (caller === "expired") headers.Cookie = "authjs.session-token=expired-or-forged";
     const r = await api(tokens[caller], route.method, route.path(ids), { body: init.body, headers });
     expect(r.status, r.text.slice(0, 300)).toBe(status);
+    if (route.createsObjective && status === 201) createdObjectives.push({ id: r.json.id as string, caller });
     if (status === 401) {
       expect(r.json.error?.code).toBe(caller === "expired" ? "session_expired" : "unauthenticated");
     }
