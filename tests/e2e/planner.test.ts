@@ -6,7 +6,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb } from "@/server/db/client";
 import { getMedium, plannerRows, refractiveIndex, theoreticalFwhm } from "@/lib/optics";
-import { openBrowser, screenshot, type Session } from "./browser";
+import { BASE_URL, openBrowser, screenshot, type Session } from "./browser";
 import { demoObjective } from "./demo-ids";
 import { PlannerPage } from "./pages/planner-page";
 import { signInAs } from "./pages/sign-in-page";
@@ -120,6 +120,16 @@ describe("medium planner", () => {
     await screenshot(page, "planner-print");
     await page.emulateMedia({ media: "screen" });
     expect(await page.getByTestId("planner-print-button").isVisible()).toBe(true);
+    expect(s.problems).toEqual([]);
+  });
+
+  it("says what is wrong with an unusable summary link instead of failing", async () => {
+    const { page } = s; // still signed in as the researcher
+    const res = await page.goto(`${BASE_URL}/planner/print?objectives=${water.id}&medium=custom&ri=7`);
+    expect(res?.status()).toBe(200);
+    await expect(page.locator("[data-testid=planner-print] [role=alert]").textContent()).resolves.toContain(
+      "not usable",
+    );
     expect(s.problems).toEqual([]);
   });
 });

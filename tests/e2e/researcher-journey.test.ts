@@ -117,5 +117,5 @@ describe("researcher checks their mounting medium", () => {
     await screenshot(page, "researcher-result");
     expect(s.problems).toEqual([]);
     expect(page.url().startsWith(BASE_URL)).toBe(true);
-  });
+  }, 240_000); // upload and analysis of a 120-plane stack
 });
