@@ -189,6 +189,8 @@ describe("a worker killed mid-job", () => {
 
     const stage = await waitFor("detecting or fitting", 45_000, async () => {
       const r = await row(id);
+      if (r.status !== "queued" && r.status !== "running")
+        throw new Error(`the measurement was ${r.status} before the worker could be killed mid-analysis`);
       return r.stage === "detecting" || r.stage === "fitting" ? r.stage : null;
     });
     signal(first, "SIGKILL");

@@ -115,7 +115,7 @@ export async function getMeasurementSummaryExport(db: Db, actor: Actor, id: stri
         "peak-to-valley of the best-focus plane fitted to the beads nearest the coverslip, over the field",
       LateralAsymmetry: "median over the beads of min(FWHM x, FWHM y) / max(FWHM x, FWHM y)",
       AxialAsymmetry:
-        "median over the beads of (largest side lobe beyond focus − largest side lobe before focus) / peak, within ±4 axial FWHM",
+        "median over the beads of (largest side lobe on the far side of focus − largest side lobe on the near side) / peak, within ±4 axial FWHM",
     },
     engineVersion: row.engineVersion ?? s.engineVersion,
     formula: row.formulaId ?? formula,
