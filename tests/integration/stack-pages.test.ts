@@ -232,10 +232,10 @@ describe("listStacksWithUsage and getStackDetail", () => {
     expect(d.metadata!.slices).toEqual({ value: 24, source: "imagej" });
     expect(d.uploadedByName).toMatch(/^staff /);
 
-    // The engineer's visit covers the first instrument only: the sample run elsewhere stays hidden.
-    const eng = await getStackDetail(getDb(), f.actors.engineer, staffStackId);
-    expect(eng.measurementCount).toBe(2);
-    expect(eng.measurements.map((m) => m.purpose)).toEqual(["routine"]);
+    // A visiting engineer works on the stacks they uploaded; staff's stack is not found for them.
+    await expect(getStackDetail(getDb(), f.actors.engineer, staffStackId)).rejects.toMatchObject({
+      code: "not_found",
+    });
 
     // A researcher sees their own sample run on their stack, not the one staff made.
     const res = await getStackDetail(getDb(), f.actors.researcher, researcherStackId);

@@ -150,7 +150,7 @@ export async function registerStackFromFile(
 export async function listStacks(db: Db, actor: Actor) {
   requirePermission(actor, "stacks.upload");
   const where =
-    actor.role === "researcher"
+    actor.role === "researcher" || actor.role === "engineer"
       ? and(eq(stacks.facilityId, actor.facilityId), eq(stacks.uploadedBy, actor.userId))
       : eq(stacks.facilityId, actor.facilityId);
   const rows = await db.select().from(stacks).where(where).orderBy(desc(stacks.createdAt)).limit(200);
@@ -164,7 +164,9 @@ export async function getStackRow(db: Db, actor: Actor, id: string): Promise<Sta
     .where(and(eq(stacks.facilityId, actor.facilityId), eq(stacks.id, id)))
     .limit(1);
   if (!row) throw notFound("Stack");
-  if (actor.role === "researcher" && row.uploadedBy !== actor.userId) throw notFound("Stack");
+  // Researchers and visiting engineers work on the stacks they uploaded themselves.
+  if ((actor.role === "researcher" || actor.role === "engineer") && row.uploadedBy !== actor.userId)
+    throw notFound("Stack");
   return row;
 }
 
@@ -207,7 +209,7 @@ export async function listStacksWithUsage(db: Db, actor: Actor): Promise<StackLi
   requirePermission(actor, "stacks.upload");
   const rows = await listStacksWithUsageByFacility(db, {
     facilityId: actor.facilityId,
-    uploadedBy: actor.role === "researcher" ? actor.userId : undefined,
+    uploadedBy: actor.role === "researcher" || actor.role === "engineer" ? actor.userId : undefined,
     limit: 200,
   });
   return rows.map((r) => ({
