@@ -177,27 +177,38 @@ describe("who may start which measurement", () => {
     ).toBe("not_found");
   });
 
-  it("an engineer runs service measurements only on the visit's instrument", async () => {
-    expect(
-      await outcome(() =>
+  it("an engineer runs service measurements on their own stacks, only on the visit's instrument", async () => {
+    // The engineer brings their own as-found stack; staff's stack is not visible to them.
+    const file = path.join(dir, "engineer.tif");
+    writeFileSync(
+      file,
+      makeDemoBeadStack({
+        na: 1.4,
+        immersionRi: 1.518,
+        sampleRi: 1.518,
+        emissionWavelengthNm: 520,
+        beadCount: 4,
+        seed: 9,
+      }).tiff,
+    );
+    const own = (
+      await registerStackFromFile(getDb(), getStorage(), f.actors.engineer, {
+        filePath: file,
+        fileName: "e.tif",
+      })
+    ).id;
+    const asEngineer = (stack: string, objectiveId: string) =>
+      outcome(() =>
         createMeasurement(getDb(), f.actors.engineer, {
           ...base,
           purpose: "pre-service",
-          stackId,
-          objectiveId: f.objectiveIds[1],
+          stackId: stack,
+          objectiveId,
         }),
-      ),
-    ).toBe("not_found");
-    expect(
-      await outcome(() =>
-        createMeasurement(getDb(), f.actors.engineer, {
-          ...base,
-          purpose: "pre-service",
-          stackId,
-          objectiveId: f.objectiveIds[0],
-        }),
-      ),
-    ).toBe("ok");
+      );
+    expect(await asEngineer(stackId, f.objectiveIds[0])).toBe("not_found");
+    expect(await asEngineer(own, f.objectiveIds[1])).toBe("not_found");
+    expect(await asEngineer(own, f.objectiveIds[0])).toBe("ok");
   });
 
   it("an unknown medium is a 422 with a pointer to the media list", async () => {
