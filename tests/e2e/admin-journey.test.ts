@@ -17,6 +17,8 @@ import { demoObjective } from "./demo-ids";
 import { signInAs } from "./pages/sign-in-page";
 
 const OUTBOX = path.resolve(process.env.DATA_DIR ?? ".data", "outbox.jsonl");
+// Under `npm start` mail travels over SMTP to the local capture server, which writes here instead.
+const CAPTURE = path.resolve(".data", "mail-capture.jsonl");
 
 let s: Session;
 let objective: Awaited<ReturnType<typeof demoObjective>>;
@@ -40,11 +42,13 @@ afterAll(async () => {
 /** The newest outbox message to `email`, waiting briefly for it to be written. */
 async function mailTo(email: string): Promise<{ subject: string; text: string }> {
   for (let i = 0; i < 50; i++) {
-    let lines: string[] = [];
-    try {
-      lines = readFileSync(OUTBOX, "utf8").trim().split("\n");
-    } catch {
-      /* not written yet */
+    const lines: string[] = [];
+    for (const file of [OUTBOX, CAPTURE]) {
+      try {
+        lines.push(...readFileSync(file, "utf8").trim().split("\n"));
+      } catch {
+        /* not written yet */
+      }
     }
     const found = lines
       .filter(Boolean)
@@ -53,7 +57,7 @@ async function mailTo(email: string): Promise<{ subject: string; text: string }>
     if (found.length) return found[found.length - 1]!;
     await new Promise((r) => setTimeout(r, 200));
   }
-  throw new Error(`no mail to ${email} in ${OUTBOX}`);
+  throw new Error(`no mail to ${email} in ${OUTBOX} or ${CAPTURE}`);
 }
 
 describe("facility admin", () => {

@@ -30,7 +30,8 @@ describe("resumable upload (tus 1.0.0)", () => {
       immersionRi: 1.518,
       sampleRi: 1.518,
       emissionWavelengthNm: 520,
-      seed: 77,
+      // A fresh seed per run: the same bytes would be recognised as a duplicate of an earlier run.
+      seed: 77_000 + (Date.now() % 100_000),
     }).tiff;
     const sha = createHash("sha256").update(bytes).digest("hex");
     const tus = { "Tus-Resumable": "1.0.0" };
