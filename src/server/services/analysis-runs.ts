@@ -111,7 +111,12 @@ export function buildSummary(result: MeasurementPipelineResult, row: Measurement
     sampling: {
       verdict: result.sampling.verdict,
       message: result.sampling.message,
-      enoughForFitting: result.sampling.lateral.enoughForFitting && result.sampling.axial.enoughForFitting,
+      // The fitting rule (≥ 3 px laterally, ≥ 5 planes axially across the FWHM) applies to the
+      // PSF actually imaged: a mismatch-broadened axial PSF can be well sampled by a z-step
+      // that would be too coarse for the ideal one.
+      enoughForFitting:
+        (result.sampling.lateral.enoughForFitting || (lateralUm ?? 0) / result.voxelSizeUm.x >= 3) &&
+        (result.sampling.axial.enoughForFitting || (axialUm ?? 0) / result.voxelSizeUm.z >= 5),
     },
   });
   const psf = analysis.averagedPsf;
