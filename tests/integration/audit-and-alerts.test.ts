@@ -5,11 +5,9 @@
  * dates with its methods paragraph (made-up history inserted directly).
  */
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import type { AddressInfo } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { SMTPServer } from "smtp-server";
 import { and, eq } from "drizzle-orm";
 import { closeDb, getDb } from "@/server/db/client";
 import { auditLog, measurements, stacks, users } from "@/server/db/schema";
@@ -31,15 +29,10 @@ import { getStatusOnDate } from "@/server/services/status-on-date";
 import { analyzeMeasurement } from "@/worker/handlers/analyze-measurement";
 import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
 import { makeFacility, type TestFacility } from "./helpers";
+import { startSmtpCapture, type ReceivedMail, type SmtpCapture } from "./smtp-capture";
 
-interface ReceivedMail {
-  to: string[];
-  subject: string;
-  body: string;
-}
-
-const received: ReceivedMail[] = [];
-let server: SMTPServer;
+let capture: SmtpCapture;
+let received: ReceivedMail[] = [];
 let serverOpen = false;
 let f: TestFacility;
 let other: TestFacility;
@@ -50,13 +43,6 @@ let adminEmail: string;
 let staffEmail: string;
 let alertedId: string;
 const attempt = { retryCount: 0, retryLimit: 3 };
-
-function decodeQuotedPrintable(raw: string): string {
-  const bytes = raw
-    .replace(/=\r?\n/g, "")
-    .replace(/=([0-9A-F]{2})/g, (_, h: string) => String.fromCharCode(parseInt(h, 16)));
-  return Buffer.from(bytes, "latin1").toString("utf8");
-}
 
 async function codeOf(fn: () => Promise<unknown>): Promise<string> {
   try {
@@ -116,28 +102,9 @@ async function alertRows(measurementId: string) {
 }
 
 beforeAll(async () => {
-  server = new SMTPServer({
-    authOptional: true,
-    disabledCommands: ["STARTTLS"],
-    logger: false,
-    onData(stream, session, callback) {
-      const chunks: Buffer[] = [];
-      stream.on("data", (c: Buffer) => chunks.push(c));
-      stream.on("end", () => {
-        const body = decodeQuotedPrintable(Buffer.concat(chunks).toString("latin1"));
-        received.push({
-          to: session.envelope.rcptTo.map((r) => r.address),
-          subject: /^Subject: (.*)$/m.exec(body)?.[1] ?? "",
-          body,
-        });
-        callback();
-      });
-    },
-  });
-  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
+  capture = await startSmtpCapture();
+  received = capture.received;
   serverOpen = true;
-  const { port } = server.server.address() as AddressInfo;
-  process.env.SMTP_URL = `smtp://127.0.0.1:${port}`;
   process.env.APP_URL = "http://localhost:3997";
 
   f = await makeFacility("alerts");
@@ -155,7 +122,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await stopBoss();
   closeMailer();
-  if (serverOpen) await new Promise<void>((resolve) => server.close(() => resolve()));
+  if (serverOpen) await capture.close();
   rmSync(dir, { recursive: true, force: true });
   await closeDb();
 });
@@ -212,7 +179,7 @@ describe("out-of-spec alerts", () => {
   });
 
   it("finishes the analysis when the mail server is down, and records no alert", async () => {
-    await new Promise<void>((resolve) => server.close(() => resolve()));
+    await capture.close();
     serverOpen = false;
     closeMailer();
     const { id, level } = await analyse(badStackId);

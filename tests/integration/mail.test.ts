@@ -3,9 +3,7 @@
  * smtp-server on a random port receives what the mailer sends. The environment
  * (SMTP_URL) is set before anything reads it; getEnv() caches on first use.
  */
-import type { AddressInfo } from "node:net";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { SMTPServer } from "smtp-server";
 import { and, eq } from "drizzle-orm";
 import { closeDb, getDb } from "@/server/db/client";
 import { auditLog, facilities, invitations, measurements, stacks, users } from "@/server/db/schema";
@@ -16,34 +14,11 @@ import { sendFacilityReminder, sendReminderDigests } from "@/server/services/rem
 import { verifyCredentials } from "@/server/services/sign-in";
 import { sendReminders } from "@/worker/handlers/send-reminders";
 import { makeFacility, type TestFacility } from "./helpers";
+import { startSmtpCapture, type ReceivedMail, type SmtpCapture } from "./smtp-capture";
 
-interface ReceivedMail {
-  from: string;
-  to: string[];
-  raw: string;
-  /** Body with quoted-printable soft breaks and escapes undone (good enough for our ASCII links). */
-  body: string;
-}
-
-const received: ReceivedMail[] = [];
-let server: SMTPServer;
-
-function decodeQuotedPrintable(raw: string): string {
-  const bytes = raw
-    .replace(/=\r?\n/g, "")
-    .replace(/=([0-9A-F]{2})/g, (_, h: string) => String.fromCharCode(parseInt(h, 16)));
-  return Buffer.from(bytes, "latin1").toString("utf8");
-}
-
-async function waitForMail(pred: (m: ReceivedMail) => boolean, timeoutMs = 5000): Promise<ReceivedMail> {
-  const until = Date.now() + timeoutMs;
-  for (;;) {
-    const hit = received.find(pred);
-    if (hit) return hit;
-    if (Date.now() > until) throw new Error("no matching mail arrived");
-    await new Promise((r) => setTimeout(r, 25));
-  }
-}
+let capture: SmtpCapture;
+let received: ReceivedMail[] = [];
+let waitForMail: SmtpCapture["waitForMail"];
 
 function linkIn(mail: ReceivedMail): string {
   const m = /https?:\/\/\S+\/invite\/[A-Za-z0-9_-]+/.exec(mail.body);
@@ -66,28 +41,9 @@ let b: TestFacility;
 let staffEmailA: string;
 
 beforeAll(async () => {
-  server = new SMTPServer({
-    authOptional: true,
-    disabledCommands: ["STARTTLS"],
-    logger: false,
-    onData(stream, session, callback) {
-      const chunks: Buffer[] = [];
-      stream.on("data", (c: Buffer) => chunks.push(c));
-      stream.on("end", () => {
-        const raw = Buffer.concat(chunks).toString("latin1");
-        received.push({
-          from: session.envelope.mailFrom ? session.envelope.mailFrom.address : "",
-          to: session.envelope.rcptTo.map((r) => r.address),
-          raw,
-          body: decodeQuotedPrintable(raw),
-        });
-        callback();
-      });
-    },
-  });
-  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
-  const { port } = server.server.address() as AddressInfo;
-  process.env.SMTP_URL = `smtp://127.0.0.1:${port}`;
+  capture = await startSmtpCapture();
+  received = capture.received;
+  waitForMail = capture.waitForMail;
   process.env.MAIL_FROM = "Test facility bench <bench@test.example>";
   process.env.APP_URL = "http://localhost:3999";
 
@@ -100,7 +56,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   closeMailer();
-  await new Promise<void>((resolve) => server.close(() => resolve()));
+  await capture.close();
   await closeDb();
 });
 

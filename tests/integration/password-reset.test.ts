@@ -4,9 +4,7 @@
  * once, within the hour, within the password policy, and lifts a lock-out.
  * SMTP_URL is set before anything calls getEnv() (it caches on first use).
  */
-import type { AddressInfo } from "node:net";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { SMTPServer } from "smtp-server";
 import { and, eq } from "drizzle-orm";
 import { closeDb, getDb } from "@/server/db/client";
 import { auditLog, passwordResets, users } from "@/server/db/schema";
@@ -15,33 +13,13 @@ import { closeMailer } from "@/server/mail/mailer";
 import { getPasswordReset, requestPasswordReset, resetPassword } from "@/server/services/password-reset";
 import { verifyCredentials } from "@/server/services/sign-in";
 import { makeFacility, type TestFacility } from "./helpers";
+import { startSmtpCapture, type ReceivedMail, type SmtpCapture } from "./smtp-capture";
 
-interface ReceivedMail {
-  to: string[];
-  body: string;
-}
-
-const received: ReceivedMail[] = [];
-let server: SMTPServer;
+let capture: SmtpCapture;
+let received: ReceivedMail[] = [];
+let waitForMail: SmtpCapture["waitForMail"];
 let f: TestFacility;
 let email: string;
-
-function decodeQuotedPrintable(raw: string): string {
-  const bytes = raw
-    .replace(/=\r?\n/g, "")
-    .replace(/=([0-9A-F]{2})/g, (_, h: string) => String.fromCharCode(parseInt(h, 16)));
-  return Buffer.from(bytes, "latin1").toString("utf8");
-}
-
-async function waitForMail(pred: (m: ReceivedMail) => boolean, timeoutMs = 5000): Promise<ReceivedMail> {
-  const until = Date.now() + timeoutMs;
-  for (;;) {
-    const hit = received.find(pred);
-    if (hit) return hit;
-    if (Date.now() > until) throw new Error("no matching mail arrived");
-    await new Promise((r) => setTimeout(r, 25));
-  }
-}
 
 /** Ask for a link and return the token of the mail that arrives. */
 async function requestToken(address: string, now?: Date): Promise<string> {
@@ -65,25 +43,9 @@ async function codeOf(fn: () => Promise<unknown>): Promise<string> {
 }
 
 beforeAll(async () => {
-  server = new SMTPServer({
-    authOptional: true,
-    disabledCommands: ["STARTTLS"],
-    logger: false,
-    onData(stream, session, callback) {
-      const chunks: Buffer[] = [];
-      stream.on("data", (c: Buffer) => chunks.push(c));
-      stream.on("end", () => {
-        received.push({
-          to: session.envelope.rcptTo.map((r) => r.address),
-          body: decodeQuotedPrintable(Buffer.concat(chunks).toString("latin1")),
-        });
-        callback();
-      });
-    },
-  });
-  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
-  const { port } = server.server.address() as AddressInfo;
-  process.env.SMTP_URL = `smtp://127.0.0.1:${port}`;
+  capture = await startSmtpCapture();
+  received = capture.received;
+  waitForMail = capture.waitForMail;
   process.env.APP_URL = "http://localhost:3998";
   f = await makeFacility("reset");
   email = (
@@ -93,7 +55,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   closeMailer();
-  await new Promise<void>((resolve) => server.close(() => resolve()));
+  await capture.close();
   await closeDb();
 });
 

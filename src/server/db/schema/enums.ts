@@ -1,4 +1,5 @@
 import { pgEnum } from "drizzle-orm/pg-core";
+import { logbookEventKinds } from "../../../contracts/logbook";
 
 export const roleEnum = pgEnum("role", ["admin", "staff", "researcher", "engineer"]);
 export const modalityEnum = pgEnum("modality", [
@@ -23,16 +24,4 @@ export const measurementStatusEnum = pgEnum("measurement_status", [
   "failed",
   "cancelled",
 ]);
-export const logbookEventKindEnum = pgEnum("logbook_event_kind", [
-  "cleaned",
-  "collar_set",
-  "immersion_changed",
-  "dropped",
-  "new_bead_slide",
-  "installed",
-  "repaired",
-  "service",
-  "baseline_start",
-  "checklist_step",
-  "note",
-]);
+export const logbookEventKindEnum = pgEnum("logbook_event_kind", logbookEventKinds);
