@@ -56,6 +56,15 @@ export function tiffErrorToAppError(err: TiffInputError): AppError {
   return new AppError(code, err.message, { details: { reason: err.code } });
 }
 
+/** True when the error (or one it wraps) is "no space left" or "quota exceeded" (POSIX errno ENOSPC, EDQUOT). */
+function isStorageFull(err: unknown): boolean {
+  for (let e = err, depth = 0; e && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+    const code = (e as { code?: unknown }).code;
+    if (code === "ENOSPC" || code === "EDQUOT") return true;
+  }
+  return false;
+}
+
 export async function inspectStackBytes(bytes: Uint8Array): Promise<TiffMetadata> {
   try {
     return await inspectTiff(bytes, { minSlices: 2, maxVoxels: getEnv().MAX_STACK_VOXELS });
@@ -96,7 +105,19 @@ export async function registerStackFromFile(
   const voxel = input.meta?.voxelSizeUm ?? fileVoxel;
   const source = input.meta?.voxelSizeUm ? "user" : fileVoxel ? metadata.format : "none";
   const key = stackKey(actor.facilityId, sha256);
-  await storage.putFile(key, input.filePath);
+  try {
+    await storage.putFile(key, input.filePath);
+  } catch (err) {
+    // The store leaves nothing under the key on failure (LocalStorage: temp name, removed; S3: atomic put).
+    if (isStorageFull(err)) {
+      throw new AppError(
+        "unavailable",
+        "The storage is full, so the stack could not be saved. Ask an administrator to free space, then upload again.",
+        { cause: err },
+      );
+    }
+    throw err;
+  }
   try {
     const row = await db.transaction(async (tx) => {
       const [inserted] = await tx
