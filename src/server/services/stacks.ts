@@ -162,8 +162,14 @@ export async function registerStackFromFile(
       .where(and(eq(stacks.facilityId, actor.facilityId), eq(stacks.sha256, sha256)));
     return toStackDto(winner!, true);
   } catch (err) {
-    // The object under this key is ours alone (no row references it): remove it.
-    await storage.delete(key).catch(() => {});
+    // Remove the object unless a row (a concurrent upload of the same bytes) now uses it.
+    const [user] = await db
+      .select({ id: stacks.id })
+      .from(stacks)
+      .where(eq(stacks.storageKey, key))
+      .limit(1)
+      .catch(() => [] as Array<{ id: string }>);
+    if (!user) await storage.delete(key).catch(() => {});
     throw err;
   }
 }
