@@ -76,6 +76,16 @@ export async function receiveMultipartFile(
   } catch (err) {
     await rm(filePath, { force: true });
     if (err instanceof AppError) throw err;
+    const code = (err as { code?: string }).code;
+    if (code === "ENOSPC" || code === "EDQUOT") {
+      throw new AppError(
+        "unavailable",
+        "The server's upload space is full. Ask an administrator to free space, then upload again.",
+        {
+          cause: err,
+        },
+      );
+    }
     throw new AppError("bad_request", "The upload was interrupted or the multipart body is malformed.", {
       cause: err,
     });
