@@ -18,9 +18,9 @@ export const proxy = auth((req) => {
 });
 
 export const config = {
-  // Everything except sign-in, invitation and password-reset links (public: the token
+  // Everything except sign-in, invitation, unsubscribe and password-reset links (public: the token
   // is the credential), the reset request form, the API, Next's assets and public files.
   matcher: [
-    "/((?!sign-in|invite/|forgot-password|reset-password/|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)",
+    "/((?!sign-in|invite/|unsubscribe/|forgot-password|reset-password/|api/|_next/|favicon.ico|robots.txt|.*\\.(?:png|svg|ico|woff2?)$).*)",
   ],
 };

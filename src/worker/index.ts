@@ -6,11 +6,20 @@
  */
 import { getEnv } from "../env";
 import { closeDb } from "../server/db/client";
-import { ANALYZE_QUEUE, REMINDERS_QUEUE, getBoss, scheduleReminders, stopBoss } from "../server/queue/boss";
+import {
+  ANALYZE_QUEUE,
+  REMINDERS_QUEUE,
+  WEEKLY_DIGEST_QUEUE,
+  getBoss,
+  scheduleReminders,
+  scheduleWeeklyDigest,
+  stopBoss,
+} from "../server/queue/boss";
 import { closeMailer } from "../server/mail/mailer";
 import { analyzeMeasurement } from "./handlers/analyze-measurement";
 import { cleanUpAbandonedUploads } from "./handlers/clean-up-uploads";
 import { sendReminders } from "./handlers/send-reminders";
+import { sendWeeklyDigest } from "./handlers/weekly-digest";
 
 async function main() {
   getEnv(); // fail at boot on a bad environment
@@ -32,6 +41,15 @@ async function main() {
     });
   } catch (err) {
     console.error("[worker] reminders not scheduled:", err instanceof Error ? err.message : err);
+  }
+  // The weekly summary for admins (Mondays); same rule: never stops the analyses.
+  try {
+    await scheduleWeeklyDigest(boss);
+    await boss.work(WEEKLY_DIGEST_QUEUE, { pollingIntervalSeconds: 30, batchSize: 1 }, async (jobs) => {
+      for (const job of jobs) await sendWeeklyDigest(job.data);
+    });
+  } catch (err) {
+    console.error("[worker] weekly digest not scheduled:", err instanceof Error ? err.message : err);
   }
   const cleanup = setInterval(() => void cleanUpAbandonedUploads().catch(() => {}), 3600_000);
   void cleanUpAbandonedUploads().catch(() => {});

@@ -143,10 +143,11 @@ describe("out-of-spec alerts", () => {
     const { id, level } = await analyse(badStackId);
     expect(level).toBe("fail");
     const until = Date.now() + 5000;
-    while (received.length === 0 && Date.now() < until) await new Promise((r) => setTimeout(r, 25));
-    expect(received).toHaveLength(1);
+    while (received.length < 2 && Date.now() < until) await new Promise((r) => setTimeout(r, 25));
+    // One message per person (each carries its own unsubscribe link).
+    expect(received).toHaveLength(2);
+    expect(received.flatMap((m) => m.to).sort()).toEqual([adminEmail, staffEmail].sort());
     const mail = received[0]!;
-    expect(mail.to.sort()).toEqual([adminEmail, staffEmail].sort());
     expect(mail.body).toMatch(/is out of spec/);
     expect(mail.body).toContain(`http://localhost:3997/measurements/${id}`);
     expect(mail.body).toMatch(/Lateral FWHM is [\d.]+× theory/);
@@ -155,7 +156,7 @@ describe("out-of-spec alerts", () => {
     await analyzeMeasurement({ measurementId: id }, { retryCount: 1, retryLimit: 3 });
     expect(await sendOutOfSpecAlert(getDb(), id)).toBe("already_sent");
     await new Promise((r) => setTimeout(r, 300));
-    expect(received).toHaveLength(1);
+    expect(received).toHaveLength(2);
     const rows = await alertRows(id);
     expect(rows).toHaveLength(1);
     expect(rows[0]!.details).toMatchObject({ kind: "out_of_spec", recipients: 2, delivery: "smtp" });

@@ -16,6 +16,8 @@ export interface MailMessage {
   subject: string;
   text: string;
   html?: string;
+  /** Extra headers, e.g. `List-Unsubscribe`. */
+  headers?: Record<string, string>;
 }
 
 export type MailDelivery = { mode: "smtp" } | { mode: "outbox"; path: string };
@@ -68,6 +70,7 @@ export async function sendMail(message: MailMessage): Promise<MailResult> {
       subject: message.subject,
       text: message.text,
       html: message.html,
+      headers: message.headers,
     });
     const accepted = (info.accepted ?? []).map((a: string | { address: string }) =>
       typeof a === "string" ? a : a.address,
@@ -85,6 +88,7 @@ export async function sendMail(message: MailMessage): Promise<MailResult> {
     subject: message.subject,
     text: message.text,
     html: message.html ?? null,
+    ...(message.headers ? { headers: message.headers } : {}),
   });
   // Owner-only: the outbox holds invitation links.
   await appendFile(delivery.path, `${line}\n`, { encoding: "utf8", mode: 0o600 });

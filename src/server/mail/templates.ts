@@ -169,3 +169,85 @@ export function outOfSpecAlertMail(input: {
   );
   return { subject, text, html };
 }
+
+/** Add a personal unsubscribe link (one kind of mail, one facility) to a rendered mail. */
+export function withUnsubscribeLink(mail: RenderedMail, input: { link: string; what: string }): RenderedMail {
+  const line = `To stop receiving ${input.what} from this facility, open: ${input.link}`;
+  const html = `<p style="color: #6b7280; font-size: 13px;">Don't want ${escapeHtml(input.what)}? <a href="${escapeHtml(input.link)}">Unsubscribe</a> (you can switch it back on in Settings).</p>`;
+  return {
+    subject: mail.subject,
+    text: `${mail.text}\n\n${line}`,
+    html: mail.html.replace("</body>", `${html}\n</body>`),
+  };
+}
+
+function fmtWindow(startsAt: Date, endsAt: Date): string {
+  const a = startsAt.toISOString().slice(0, 10);
+  const b = endsAt.toISOString().slice(0, 10);
+  return a === b ? a : `${a} to ${b}`;
+}
+
+export function serviceVisitMail(input: {
+  facilityName: string;
+  title: string;
+  startsAt: Date;
+  endsAt: Date;
+  instrumentNames: string[];
+  visitUrl: string;
+}): RenderedMail {
+  const window = fmtWindow(input.startsAt, input.endsAt);
+  const subject = `Service visit planned at ${input.facilityName}: ${input.title} (${window})`;
+  const text = [
+    `A service visit has been planned for you at ${input.facilityName}.`,
+    "",
+    `Visit: ${input.title}`,
+    `When: ${window} (UTC dates)`,
+    "Instruments:",
+    ...input.instrumentNames.map((n) => `  - ${n}`),
+    "",
+    `During the visit you can see these instruments and record as-found and as-left checks: ${input.visitUrl}`,
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>A service visit has been planned for you at <strong>${escapeHtml(input.facilityName)}</strong>.</p>
+<p>Visit: ${escapeHtml(input.title)}<br>When: ${escapeHtml(window)} (UTC dates)</p>
+<ul>${input.instrumentNames.map((n) => `<li>${escapeHtml(n)}</li>`).join("")}</ul>
+<p><a href="${escapeHtml(input.visitUrl)}">Open the visit</a> to record as-found and as-left checks.</p>`,
+  );
+  return { subject, text, html };
+}
+
+export function weeklyDigestMail(input: {
+  facilityName: string;
+  week: string;
+  sections: Array<{ title: string; lines: string[]; empty: string }>;
+  headline: string;
+  dashboardUrl: string;
+}): RenderedMail {
+  const subject = `Week ${input.week} at ${input.facilityName}: ${input.headline}`;
+  const text = [
+    `Bead checks at ${input.facilityName}, week ${input.week} (the last 7 days).`,
+    "",
+    ...input.sections.flatMap((s) => [
+      `${s.title}:`,
+      ...(s.lines.length ? s.lines.map((l) => `  - ${l}`) : [`  ${s.empty}`]),
+      "",
+    ]),
+    `Status and logbooks: ${input.dashboardUrl}`,
+    "",
+    "You receive this summary as admin of the facility, once a week on Monday.",
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>Bead checks at <strong>${escapeHtml(input.facilityName)}</strong>, week ${escapeHtml(input.week)} (the last 7 days).</p>
+${input.sections
+  .map(
+    (s) => `<h3 style="margin-bottom: 0.25rem;">${escapeHtml(s.title)}</h3>
+${s.lines.length ? `<ul>${s.lines.map((l) => `<li>${escapeHtml(l)}</li>`).join("")}</ul>` : `<p>${escapeHtml(s.empty)}</p>`}`,
+  )
+  .join("\n")}
+<p><a href="${escapeHtml(input.dashboardUrl)}">Open the dashboard</a> for status and logbooks.</p>
+<p style="color: #6b7280; font-size: 13px;">You receive this summary as admin of the facility, once a week on Monday.</p>`,
+  );
+  return { subject, text, html };
+}

@@ -10,6 +10,10 @@ export const ANALYZE_QUEUE = "analyze-measurement";
 export const REMINDERS_QUEUE = "send-reminders";
 /** Every day at 07:00 UTC. */
 export const REMINDERS_CRON = "0 7 * * *";
+/** The weekly summary for admins (one scheduled job sends every facility's summary). */
+export const WEEKLY_DIGEST_QUEUE = "weekly-digest";
+/** Mondays at 07:00 UTC. */
+export const WEEKLY_DIGEST_CRON = "0 7 * * 1";
 
 const globalForBoss = globalThis as unknown as { beadbenchBoss?: Promise<PgBoss> };
 
@@ -97,4 +101,17 @@ export async function scheduleReminders(boss: PgBoss): Promise<void> {
       expireInSeconds: 15 * 60,
     });
   await boss.schedule(REMINDERS_QUEUE, REMINDERS_CRON, {}, { tz: "UTC" });
+}
+
+/** Create the weekly-digest queue if needed and (re)register its Monday schedule (see scheduleReminders). */
+export async function scheduleWeeklyDigest(boss: PgBoss): Promise<void> {
+  if (!(await boss.getQueue(WEEKLY_DIGEST_QUEUE)))
+    await boss.createQueue(WEEKLY_DIGEST_QUEUE, {
+      name: WEEKLY_DIGEST_QUEUE,
+      policy: "singleton",
+      retryLimit: 2,
+      retryDelay: 300,
+      expireInSeconds: 15 * 60,
+    });
+  await boss.schedule(WEEKLY_DIGEST_QUEUE, WEEKLY_DIGEST_CRON, {}, { tz: "UTC" });
 }

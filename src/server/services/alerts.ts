@@ -7,20 +7,14 @@
  * advisory lock, so a retried job or a second worker does not mail twice, and a
  * failed send records nothing.
  */
-import { and, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "../db/client";
-import {
-  auditLog,
-  facilities,
-  instruments,
-  measurements,
-  memberships,
-  objectives,
-  users,
-} from "../db/schema";
+import { auditLog, facilities, instruments, measurements, objectives } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
-import { sendMail } from "../mail/mailer";
-import { outOfSpecAlertMail } from "../mail/templates";
+import { listMailRecipients } from "../db/queries/users";
+import { sendMail, type MailResult } from "../mail/mailer";
+import { outOfSpecAlertMail, withUnsubscribeLink } from "../mail/templates";
+import { MAIL_KIND_WORDS, unsubscribeHeaders, unsubscribeLink } from "./mail-preferences";
 import { getEnv } from "../../env";
 
 export const ALERT_ACTION = "alert.sent";
@@ -76,13 +70,13 @@ export async function sendOutOfSpecAlert(db: Db, measurementId: string): Promise
       )
       .limit(1);
     if (already) return "already_sent" as const;
-    const recipients = await tx
-      .select({ email: users.email })
-      .from(memberships)
-      .innerJoin(users, eq(users.id, memberships.userId))
-      .where(and(eq(memberships.facilityId, row.facilityId), inArray(memberships.role, ["admin", "staff"])))
-      .orderBy(users.email);
-    const to = recipients.map((r) => r.email);
+    // People who switched alerts off (Settings or the mail's link) are left out.
+    const people = await listMailRecipients(tx, {
+      facilityId: row.facilityId,
+      roles: ["admin", "staff"],
+      kind: "alerts",
+    });
+    const to = people.map((p) => p.email);
     if (to.length === 0) return "no_recipients" as const;
     const mail = outOfSpecAlertMail({
       facilityName: row.facilityName,
@@ -93,14 +87,28 @@ export async function sendOutOfSpecAlert(db: Db, measurementId: string): Promise
       evidence: verdict.evidence ?? [],
       measurementUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/measurements/${row.id}`,
     });
-    const sent = await sendMail({ to, ...mail });
+    // One message per person: each carries that person's own unsubscribe link.
+    let sent: MailResult | undefined;
+    for (const p of people) {
+      const link = unsubscribeLink(p.userId, row.facilityId, "alerts");
+      sent = await sendMail({
+        to: p.email,
+        ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS.alerts }),
+        headers: unsubscribeHeaders(link),
+      });
+    }
     await insertAuditEntry(tx, {
       facilityId: row.facilityId,
       userId: null,
       action: ALERT_ACTION,
       targetType: "measurement",
       targetId: checkId,
-      details: { kind: "out_of_spec", measurementId: row.id, delivery: sent.delivery, recipients: to.length },
+      details: {
+        kind: "out_of_spec",
+        measurementId: row.id,
+        delivery: sent!.delivery,
+        recipients: to.length,
+      },
     });
     return "sent" as const;
   });

@@ -8,7 +8,7 @@
 import { randomBytes } from "node:crypto";
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import type { Db, Tx } from "../db/client";
-import { facilities, invitations, memberships, users } from "../db/schema";
+import { facilities, invitations, memberships, serviceVisits, users } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { getUserByEmail, getUserById } from "../db/queries/users";
 import { requirePermission, type Actor } from "../auth/permissions";
@@ -286,13 +286,25 @@ export async function acceptInvitation(
     }
     await tx.insert(memberships).values({ facilityId: inv.facilityId, userId: user.id, role: inv.role });
     await tx.update(invitations).set({ acceptedAt: now }).where(eq(invitations.id, inv.id));
+    // Visits planned for this address before the engineer had access now name them.
+    const attached = await tx
+      .update(serviceVisits)
+      .set({ engineerId: user.id, engineerEmail: null })
+      .where(
+        and(
+          eq(serviceVisits.facilityId, inv.facilityId),
+          eq(serviceVisits.engineerEmail, inv.email),
+          isNull(serviceVisits.engineerId),
+        ),
+      )
+      .returning({ id: serviceVisits.id });
     await insertAuditEntry(tx, {
       facilityId: inv.facilityId,
       userId: user.id,
       action: "invitation.accept",
       targetType: "invitation",
       targetId: inv.id,
-      details: { role: inv.role, createdAccount },
+      details: { role: inv.role, createdAccount, ...(attached.length ? { visits: attached.length } : {}) },
     });
     return { userId: user.id, email: user.email, facilityId: inv.facilityId, createdAccount };
   });

@@ -7,15 +7,17 @@
  * record happen under one per-facility-and-day lock, inside one transaction, so
  * two workers cannot both send it and a failed send records nothing.
  */
-import { and, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, desc, eq, sql } from "drizzle-orm";
 import { checkReminders, type CheckReminders } from "../../lib/qc";
-import type { Db, Tx } from "../db/client";
-import { auditLog, facilities, memberships, users } from "../db/schema";
+import type { Db } from "../db/client";
+import { auditLog, facilities } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { listInstrumentsByFacility, listObjectivesByFacility } from "../db/queries/instruments";
 import { requirePermission, type Actor } from "../auth/permissions";
-import { sendMail } from "../mail/mailer";
-import { reminderDigestMail } from "../mail/templates";
+import { listMailRecipients } from "../db/queries/users";
+import { sendMail, type MailResult } from "../mail/mailer";
+import { reminderDigestMail, withUnsubscribeLink } from "../mail/templates";
+import { MAIL_KIND_WORDS, unsubscribeHeaders, unsubscribeLink } from "./mail-preferences";
 import { getEnv } from "../../env";
 import { getTrends } from "./logbook";
 
@@ -78,16 +80,6 @@ export async function buildFacilityReminders(
   );
 }
 
-async function digestRecipients(db: Db | Tx, facilityId: string): Promise<string[]> {
-  const rows = await db
-    .select({ email: users.email })
-    .from(memberships)
-    .innerJoin(users, eq(users.id, memberships.userId))
-    .where(and(eq(memberships.facilityId, facilityId), inArray(memberships.role, ["admin", "staff"])))
-    .orderBy(users.email);
-  return rows.map((r) => r.email);
-}
-
 /** Build and send one facility's digest for `now`'s day, unless nothing is due or it was already sent. */
 export async function sendFacilityReminder(
   db: Db,
@@ -113,7 +105,13 @@ export async function sendFacilityReminder(
       )
       .limit(1);
     if (already) return { ...base, outcome: "already_sent" as const, recipients: 0, items: reminders.total };
-    const to = await digestRecipients(tx, facility.id);
+    // People who switched reminders off (Settings or the mail's link) are left out.
+    const people = await listMailRecipients(tx, {
+      facilityId: facility.id,
+      roles: ["admin", "staff"],
+      kind: "reminders",
+    });
+    const to = people.map((p) => p.email);
     if (to.length === 0)
       return { ...base, outcome: "no_recipients" as const, recipients: 0, items: reminders.total };
     const mail = reminderDigestMail({
@@ -122,7 +120,16 @@ export async function sendFacilityReminder(
       dashboardUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/dashboard`,
       day,
     });
-    const sent = await sendMail({ to, ...mail });
+    // One message per person: each carries that person's own unsubscribe link.
+    let sent: MailResult | undefined;
+    for (const p of people) {
+      const link = unsubscribeLink(p.userId, facility.id, "reminders");
+      sent = await sendMail({
+        to: p.email,
+        ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS.reminders }),
+        headers: unsubscribeHeaders(link),
+      });
+    }
     await insertAuditEntry(tx, {
       facilityId: facility.id,
       userId: null,
@@ -131,7 +138,7 @@ export async function sendFacilityReminder(
       targetId: facility.id,
       details: {
         day,
-        delivery: sent.delivery,
+        delivery: sent!.delivery,
         recipients: to.length,
         overdue: reminders.overdue.length,
         dueSoon: reminders.dueSoon.length,

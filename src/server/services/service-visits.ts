@@ -2,6 +2,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import type { CreateServiceVisit } from "../../contracts/service-visits";
 import type { Db } from "../db/client";
 import {
+  facilities,
   instruments,
   memberships,
   objectives,
@@ -12,8 +13,12 @@ import {
 import { insertAuditEntry } from "../db/queries/audit";
 import { listChecksByObjective, listEventsByObjective } from "../db/queries/logbook";
 import { listServiceVisitsByFacility } from "../db/queries/service-visits";
-import { requirePermission, type Actor } from "../auth/permissions";
+import { can, requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
+import { sendMail } from "../mail/mailer";
+import { serviceVisitMail } from "../mail/templates";
+import { getEnv } from "../../env";
+import { inviteUser } from "./invitations";
 import { buildTrend } from "./logbook";
 
 /** Visits of the facility; an engineer sees only their own. */
@@ -45,10 +50,23 @@ export async function listServiceVisits(db: Db, actor: Actor) {
   }));
 }
 
-/** Plan a visit: which engineer, which instruments, which dates (admins and staff). */
-export async function createServiceVisit(db: Db, actor: Actor, input: CreateServiceVisit) {
+export type EngineerNotice = "invited" | "mailed" | "mail_failed" | null;
+
+/**
+ * Plan a visit: which engineer, which instruments, which dates (admins and staff).
+ * The engineer is a member picked by id, or an e-mail address: a member's address
+ * attaches them and mails them the visit; an unknown address is stored on the visit
+ * and invited with the role engineer (admins only, since inviting needs
+ * people.manage), and accepting that invitation attaches them. A mail that cannot
+ * be sent does not undo the visit: `engineerNotice` says "mail_failed".
+ */
+export async function createServiceVisit(db: Db, actor: Actor, input: CreateServiceVisit, now = new Date()) {
   requirePermission(actor, "instruments.manage");
-  return db.transaction(async (tx) => {
+  const email = input.engineerEmail?.trim().toLowerCase() || null;
+  const planned = await db.transaction(async (tx) => {
+    let engineerId = input.engineerId ?? null;
+    let pendingEmail: string | null = null;
+    let engineerEmail: string | null = null;
     if (input.engineerId) {
       const [m] = await tx
         .select()
@@ -56,8 +74,36 @@ export async function createServiceVisit(db: Db, actor: Actor, input: CreateServ
         .where(and(eq(memberships.facilityId, actor.facilityId), eq(memberships.userId, input.engineerId)));
       if (!m) throw new AppError("unprocessable", "That engineer is not a member of this facility.");
     }
+    if (email) {
+      const [member] = await tx
+        .select({ userId: users.id })
+        .from(memberships)
+        .innerJoin(users, eq(users.id, memberships.userId))
+        .where(and(eq(memberships.facilityId, actor.facilityId), eq(users.email, email)));
+      if (member) {
+        if (engineerId && engineerId !== member.userId)
+          throw new AppError(
+            "unprocessable",
+            "The engineer chosen and the e-mail address are different people.",
+          );
+        engineerId = member.userId;
+        engineerEmail = email;
+      } else {
+        if (engineerId)
+          throw new AppError(
+            "unprocessable",
+            "Choose an engineer from the list or give the address of a new one, not both.",
+          );
+        if (!can(actor, "people.manage"))
+          throw new AppError(
+            "forbidden",
+            "Only admins can invite a new engineer. Ask an admin, or choose an engineer who already has access.",
+          );
+        pendingEmail = email;
+      }
+    }
     const insts = await tx
-      .select({ id: instruments.id })
+      .select({ id: instruments.id, name: instruments.name })
       .from(instruments)
       .where(and(eq(instruments.facilityId, actor.facilityId), inArray(instruments.id, input.instrumentIds)));
     if (insts.length !== new Set(input.instrumentIds).size) {
@@ -69,7 +115,8 @@ export async function createServiceVisit(db: Db, actor: Actor, input: CreateServ
       .insert(serviceVisits)
       .values({
         facilityId: actor.facilityId,
-        engineerId: input.engineerId ?? null,
+        engineerId,
+        engineerEmail: pendingEmail,
         title: input.title,
         startsAt: new Date(input.startsAt),
         endsAt,
@@ -84,9 +131,47 @@ export async function createServiceVisit(db: Db, actor: Actor, input: CreateServ
       action: "service_visit.create",
       targetType: "service_visit",
       targetId: visit!.id,
+      details: pendingEmail ? { invitedEngineer: pendingEmail } : undefined,
     });
-    return visit!;
+    const [facility] = await tx
+      .select({ name: facilities.name })
+      .from(facilities)
+      .where(eq(facilities.id, actor.facilityId));
+    return {
+      visit: visit!,
+      pendingEmail,
+      engineerEmail,
+      facilityName: facility?.name ?? "your facility",
+      instrumentNames: insts.map((i) => i.name).sort(),
+    };
   });
+
+  let engineerNotice: EngineerNotice = null;
+  try {
+    if (planned.pendingEmail) {
+      await inviteUser(db, actor, { email: planned.pendingEmail, role: "engineer" }, now);
+      engineerNotice = "invited";
+    } else if (planned.engineerEmail) {
+      const mail = serviceVisitMail({
+        facilityName: planned.facilityName,
+        title: planned.visit.title,
+        startsAt: planned.visit.startsAt,
+        endsAt: planned.visit.endsAt,
+        instrumentNames: planned.instrumentNames,
+        visitUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/service-visits/${planned.visit.id}`,
+      });
+      await sendMail({ to: planned.engineerEmail, ...mail });
+      engineerNotice = "mailed";
+    }
+  } catch (err) {
+    // The visit stands; the admin can invite again from Settings (the pending address is kept on the visit).
+    console.error(
+      "[service-visits] the engineer could not be notified:",
+      err instanceof Error ? err.message : "unknown error",
+    );
+    engineerNotice = "mail_failed";
+  }
+  return { ...planned.visit, engineerNotice };
 }
 
 async function getVisitRow(db: Db, actor: Actor, id: string) {

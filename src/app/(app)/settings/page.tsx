@@ -8,22 +8,38 @@ import { listPeople } from "@/server/services/people";
 import { listApiTokens } from "@/server/services/api-tokens";
 import { getMailDelivery, listInvitations } from "@/server/services/invitations";
 import { getLastReminder } from "@/server/services/reminders";
+import { getMailPreferences, setMailPreferences } from "@/server/services/mail-preferences";
+import { revalidatePath } from "next/cache";
+import { requireApiActor } from "@/server/auth/current-actor";
 import { fmtDate } from "@/components/format";
 import { TokenForm } from "./_components/token-form";
 import { InviteForm, RevokeInvitationButton } from "./_components/invite-form";
 
 export const metadata: Metadata = { title: "Settings" };
 
+/** The signed-in person's own choice of automatic mail from this facility. */
+async function saveMailPreferencesAction(form: FormData): Promise<void> {
+  "use server";
+  const actor = await requireApiActor();
+  await setMailPreferences(getDb(), actor, {
+    reminders: form.get("reminders") === "on",
+    alerts: form.get("alerts") === "on",
+    weeklyDigest: form.get("weeklyDigest") === "on",
+  });
+  revalidatePath("/settings");
+}
+
 export default async function SettingsPage() {
   const { actor, facilityName } = await requirePageActor();
   if (!can(actor, "settings.open")) forbidden();
   const db = getDb();
   const managesPeople = can(actor, "people.manage");
-  const [people, tokens, invitations, lastReminder] = await Promise.all([
+  const [people, tokens, invitations, lastReminder, mailPrefs] = await Promise.all([
     managesPeople ? listPeople(db, actor) : Promise.resolve([]),
     listApiTokens(db, actor),
     managesPeople ? listInvitations(db, actor) : Promise.resolve([]),
     getLastReminder(db, actor),
+    getMailPreferences(db, actor),
   ]);
   const delivery = getMailDelivery(actor);
   return (
@@ -147,6 +163,32 @@ export default async function SettingsPage() {
             "No digest has been sent to this facility yet."
           )}
         </p>
+      </section>
+      <section className="card" aria-labelledby="email-heading">
+        <h2 id="email-heading" className="mb-1">
+          E-mail
+        </h2>
+        <p className="mb-3 text-sm text-ink-soft">
+          Which automatic e-mails you get from this facility. Each of them also has a one-click unsubscribe
+          link.
+        </p>
+        <form action={saveMailPreferencesAction} className="space-y-2" data-testid="mail-preferences-form">
+          <label className="flex items-center gap-2 text-sm">
+            <input type="checkbox" name="reminders" defaultChecked={mailPrefs.reminders} /> Daily reminders of
+            checks to plan
+          </label>
+          <label className="flex items-center gap-2 text-sm">
+            <input type="checkbox" name="alerts" defaultChecked={mailPrefs.alerts} /> Alerts when a check is
+            out of spec
+          </label>
+          <label className="flex items-center gap-2 text-sm">
+            <input type="checkbox" name="weeklyDigest" defaultChecked={mailPrefs.weeklyDigest} /> Weekly
+            summary on Mondays (admins only)
+          </label>
+          <button type="submit" className="btn">
+            Save e-mail choices
+          </button>
+        </form>
       </section>
       <section className="card">
         <h2 className="mb-1">API tokens</h2>

@@ -1,6 +1,6 @@
-import { and, eq, sql } from "drizzle-orm";
+import { and, eq, inArray, isNull, or, sql } from "drizzle-orm";
 import type { Db, Tx } from "../client";
-import { facilities, memberships, users } from "../schema";
+import { facilities, mailPreferences, memberships, users } from "../schema";
 
 type Q = Db | Tx;
 
@@ -71,4 +71,44 @@ export async function listPeopleByFacility(db: Q, { facilityId }: { facilityId: 
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.facilityId, facilityId))
     .orderBy(users.name);
+}
+
+/**
+ * Members of a facility with one of `roles` who have not switched off `kind` mail
+ * (no `mail_preferences` row means everything is on), ordered by e-mail.
+ */
+export async function listMailRecipients(
+  db: Db | Tx,
+  {
+    facilityId,
+    roles,
+    kind,
+  }: {
+    facilityId: string;
+    roles: Array<"admin" | "staff" | "researcher" | "engineer">;
+    kind: "reminders" | "alerts" | "weekly_digest";
+  },
+): Promise<Array<{ userId: string; email: string }>> {
+  const column =
+    kind === "reminders"
+      ? mailPreferences.reminders
+      : kind === "alerts"
+        ? mailPreferences.alerts
+        : mailPreferences.weeklyDigest;
+  return db
+    .select({ userId: users.id, email: users.email })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .leftJoin(
+      mailPreferences,
+      and(eq(mailPreferences.userId, users.id), eq(mailPreferences.facilityId, memberships.facilityId)),
+    )
+    .where(
+      and(
+        eq(memberships.facilityId, facilityId),
+        inArray(memberships.role, roles),
+        or(isNull(column), eq(column, true)),
+      ),
+    )
+    .orderBy(users.email);
 }

@@ -1,4 +1,14 @@
-import { bigserial, index, jsonb, pgTable, text, timestamp, uuid } from "drizzle-orm/pg-core";
+import {
+  bigserial,
+  boolean,
+  index,
+  jsonb,
+  pgTable,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
+} from "drizzle-orm/pg-core";
 import { timestamps } from "./common";
 import { roleEnum } from "./enums";
 import { facilities, users } from "./facilities";
@@ -74,6 +84,8 @@ export const serviceVisits = pgTable(
       .notNull()
       .references(() => facilities.id, { onDelete: "cascade" }),
     engineerId: uuid("engineer_id").references(() => users.id, { onDelete: "set null" }),
+    /** An engineer invited by e-mail who has not accepted yet; attached (and cleared) on acceptance. */
+    engineerEmail: text("engineer_email"),
     title: text("title").notNull(),
     startsAt: timestamp("starts_at", { withTimezone: true }).notNull(),
     endsAt: timestamp("ends_at", { withTimezone: true }).notNull(),
@@ -115,5 +127,28 @@ export const auditLog = pgTable(
   (t) => [index("audit_log_facility_created_idx").on(t.facilityId, t.createdAt)],
 );
 
+/**
+ * Which automatic mails a person gets from one facility. No row means "all on";
+ * unsubscribe links and the settings page write here.
+ */
+export const mailPreferences = pgTable(
+  "mail_preferences",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    facilityId: uuid("facility_id")
+      .notNull()
+      .references(() => facilities.id, { onDelete: "cascade" }),
+    reminders: boolean("reminders").notNull().default(true),
+    alerts: boolean("alerts").notNull().default(true),
+    weeklyDigest: boolean("weekly_digest").notNull().default(true),
+    ...timestamps,
+  },
+  (t) => [uniqueIndex("mail_preferences_user_facility_idx").on(t.userId, t.facilityId)],
+);
+
 export type ApiToken = typeof apiTokens.$inferSelect;
 export type ServiceVisit = typeof serviceVisits.$inferSelect;
+export type MailPreferences = typeof mailPreferences.$inferSelect;

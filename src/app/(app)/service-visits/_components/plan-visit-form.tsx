@@ -14,7 +14,8 @@ export function PlanVisitForm({
   const [busy, setBusy] = useState(false);
   async function submit(e: React.FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const f = new FormData(e.currentTarget);
+    const form = e.currentTarget;
+    const f = new FormData(form);
     setBusy(true);
     setError(null);
     const res = await fetch("/api/v1/service-visits", {
@@ -23,6 +24,7 @@ export function PlanVisitForm({
       body: JSON.stringify({
         title: f.get("title"),
         engineerId: f.get("engineerId") || undefined,
+        engineerEmail: String(f.get("engineerEmail") ?? "").trim() || undefined,
         instrumentIds: f.getAll("instrumentIds"),
         startsAt: f.get("startsAt"),
         endsAt: f.get("endsAt"),
@@ -34,7 +36,12 @@ export function PlanVisitForm({
       setError(j?.error?.message ?? `HTTP ${res.status}`);
       return;
     }
-    e.currentTarget?.reset();
+    const created = await res.json().catch(() => null);
+    if (created?.engineerNotice === "mail_failed")
+      setError(
+        "The visit is planned, but the e-mail to the engineer could not be sent. Check the mail settings and invite them again under Settings.",
+      );
+    form.reset();
     router.refresh();
   }
   const today = new Date().toISOString().slice(0, 10);
@@ -64,6 +71,23 @@ export function PlanVisitForm({
             </option>
           ))}
         </select>
+      </div>
+      <div>
+        <label className="label" htmlFor="v-eng-email">
+          …or a new engineer&apos;s e-mail
+        </label>
+        <input
+          id="v-eng-email"
+          name="engineerEmail"
+          type="email"
+          className="field"
+          autoComplete="off"
+          placeholder="engineer@service.example"
+        />
+        <p className="mt-1 text-xs text-ink-soft">
+          Not yet a member: we send an invitation (admins only) and attach them when they accept. Already a
+          member: we e-mail them the visit.
+        </p>
       </div>
       <div className="row-span-2">
         <span className="label">Instruments</span>
