@@ -8,6 +8,7 @@ import { AppError } from "@/server/http/errors";
 import { formToObject, validatedAction, type ActionState } from "@/server/http/validated-action";
 import { createApiToken } from "@/server/services/api-tokens";
 import { inviteUser, revokeInvitation } from "@/server/services/invitations";
+import { changeRole as changeRoleService } from "@/server/services/people";
 
 const schema = z.object({
   name: z.string().trim().min(1, "Give the token a name").max(80),
@@ -56,4 +57,16 @@ const revoke = validatedAction(
 
 export async function revokeInvitationAction(prev: ActionState, form: FormData) {
   return revoke(prev, form);
+}
+
+const changeRole = validatedAction(
+  z.object({ userId: z.uuid(), role: z.enum(["admin", "staff", "researcher", "engineer"]) }),
+  async (actor, input) => {
+    await changeRoleService(getDb(), actor, input);
+    revalidatePath("/settings");
+  },
+);
+
+export async function changeRoleAction(prev: ActionState, form: FormData) {
+  return changeRole(prev, form);
 }

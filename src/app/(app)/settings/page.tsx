@@ -13,6 +13,7 @@ import { revalidatePath } from "next/cache";
 import { requireApiActor } from "@/server/auth/current-actor";
 import { fmtDate } from "@/components/format";
 import { TokenForm } from "./_components/token-form";
+import { RoleSelect } from "./_components/role-select";
 import { InviteForm, RevokeInvitationButton } from "./_components/invite-form";
 
 export const metadata: Metadata = { title: "Settings" };
@@ -71,7 +72,9 @@ export default async function SettingsPage() {
                 <tr key={p.userId}>
                   <td>{p.name}</td>
                   <td>{p.email}</td>
-                  <td>{p.role}</td>
+                  <td>
+                    <RoleSelect userId={p.userId} role={p.role} self={p.userId === actor.userId} />
+                  </td>
                   <td className="font-mono">{fmtDate(p.lastSignInAt)}</td>
                 </tr>
               ))}
