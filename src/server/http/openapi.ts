@@ -323,6 +323,21 @@ export function buildOpenApiDocument(serverUrl: string) {
           responses: { "200": ok("{ id, signedOff }"), ...errors(400, 401, 403, 404, 409, 415, 422) },
         },
       },
+      "/api/v1/service-visits/{id}/report.pdf": {
+        get: {
+          summary: "A service visit's report as an A4 PDF (attachment visit-<first day>.pdf)",
+          parameters: idParam,
+          responses: { "200": binary("PDF", "application/pdf"), ...errors(400, 401, 404) },
+        },
+      },
+      "/api/v1/service-visits/{id}/report/email": {
+        post: {
+          summary:
+            "E-mail a service visit's report (PDF attached) to the facility's admins and the visit's engineer",
+          parameters: idParam,
+          responses: { "200": ok("{ id, fileName, sentTo }"), ...errors(400, 401, 403, 404, 422, 503) },
+        },
+      },
       "/api/v1/openapi.json": {
         get: {
           summary: "This document",

@@ -18,6 +18,14 @@ export interface MailMessage {
   html?: string;
   /** Extra headers, e.g. `List-Unsubscribe`. */
   headers?: Record<string, string>;
+  /** Files sent with the message (the outbox records their names and sizes, not the bytes). */
+  attachments?: MailAttachment[];
+}
+
+export interface MailAttachment {
+  filename: string;
+  content: Uint8Array;
+  contentType: string;
 }
 
 export type MailDelivery = { mode: "smtp" } | { mode: "outbox"; path: string };
@@ -71,6 +79,11 @@ export async function sendMail(message: MailMessage): Promise<MailResult> {
       text: message.text,
       html: message.html,
       headers: message.headers,
+      attachments: message.attachments?.map((a) => ({
+        filename: a.filename,
+        content: Buffer.from(a.content.buffer, a.content.byteOffset, a.content.byteLength),
+        contentType: a.contentType,
+      })),
     });
     const accepted = (info.accepted ?? []).map((a: string | { address: string }) =>
       typeof a === "string" ? a : a.address,
@@ -89,6 +102,15 @@ export async function sendMail(message: MailMessage): Promise<MailResult> {
     text: message.text,
     html: message.html ?? null,
     ...(message.headers ? { headers: message.headers } : {}),
+    ...(message.attachments?.length
+      ? {
+          attachments: message.attachments.map((a) => ({
+            filename: a.filename,
+            contentType: a.contentType,
+            size: a.content.byteLength,
+          })),
+        }
+      : {}),
   });
   // Owner-only: the outbox holds invitation links.
   await appendFile(delivery.path, `${line}\n`, { encoding: "utf8", mode: 0o600 });

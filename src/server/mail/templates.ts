@@ -251,3 +251,43 @@ ${s.lines.length ? `<ul>${s.lines.map((l) => `<li>${escapeHtml(l)}</li>`).join("
   );
   return { subject, text, html };
 }
+
+export function serviceVisitReportMail(input: {
+  facilityName: string;
+  title: string;
+  startsAt: Date;
+  endsAt: Date;
+  signedOffAt: Date | null;
+  verdicts: Array<{ objectiveName: string; verdict: string }>;
+  fileName: string;
+  visitUrl: string;
+}): RenderedMail {
+  const window = fmtWindow(input.startsAt, input.endsAt);
+  const state = input.signedOffAt
+    ? `signed off on ${input.signedOffAt.toISOString().slice(0, 10)}`
+    : "not signed off yet";
+  const subject = `Service visit report, ${input.facilityName}: ${input.title} (${window})`;
+  const text = [
+    `The report of the service visit "${input.title}" at ${input.facilityName} (${window}, UTC dates; ${state}) is attached as ${input.fileName}.`,
+    "",
+    ...(input.verdicts.length
+      ? ["Objectives:", ...input.verdicts.map((v) => `  - ${v.objectiveName}: ${v.verdict}`)]
+      : ["No objectives are mounted on the visit's instruments."]),
+    "",
+    `The visit in Beadbench: ${input.visitUrl}`,
+    "",
+    "The figures are advisory and do not replace the manufacturer's own acceptance tests.",
+  ].join("\n");
+  const html = page(
+    subject,
+    `<p>The report of the service visit <strong>${escapeHtml(input.title)}</strong> at ${escapeHtml(input.facilityName)} (${escapeHtml(window)}, UTC dates; ${escapeHtml(state)}) is attached as <code>${escapeHtml(input.fileName)}</code>.</p>
+${
+  input.verdicts.length
+    ? `<ul>${input.verdicts.map((v) => `<li>${escapeHtml(v.objectiveName)}: <strong>${escapeHtml(v.verdict)}</strong></li>`).join("")}</ul>`
+    : "<p>No objectives are mounted on the visit's instruments.</p>"
+}
+<p><a href="${escapeHtml(input.visitUrl)}">Open the visit</a></p>
+<p style="color: #6b7280; font-size: 13px;">The figures are advisory and do not replace the manufacturer's own acceptance tests.</p>`,
+  );
+  return { subject, text, html };
+}

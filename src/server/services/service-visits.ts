@@ -16,7 +16,9 @@ import { listServiceVisitsByFacility } from "../db/queries/service-visits";
 import { can, requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
 import { sendMail } from "../mail/mailer";
-import { serviceVisitMail } from "../mail/templates";
+import { serviceVisitMail, serviceVisitReportMail } from "../mail/templates";
+import { listPeopleByFacility } from "../db/queries/users";
+import { renderServiceVisitPdf, serviceVisitPdfFileName } from "../reports/service-visit-pdf";
 import { getEnv } from "../../env";
 import { inviteUser } from "./invitations";
 import { buildTrend } from "./logbook";
@@ -339,4 +341,78 @@ export async function listEngineers(db: Db, actor: Actor) {
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.facilityId, actor.facilityId), eq(memberships.role, "engineer")));
+}
+
+/**
+ * The visit report as a PDF, with the same access as `getServiceVisitReport`
+ * (researchers, other engineers and other facilities get "not found").
+ */
+export async function getServiceVisitReportPdf(db: Db, actor: Actor, id: string, now = new Date()) {
+  const report = await getServiceVisitReport(db, actor, id);
+  const [facility] = await db
+    .select({ name: facilities.name })
+    .from(facilities)
+    .where(eq(facilities.id, actor.facilityId));
+  const facilityName = facility?.name ?? "—";
+  const bytes = await renderServiceVisitPdf(report, facilityName, { generatedAt: now });
+  return { bytes, fileName: serviceVisitPdfFileName(report.visit.startsAt), report, facilityName };
+}
+
+/**
+ * Mail the visit report (PDF attached) to the facility's admins and the visit's
+ * engineer, in one message (admins and staff). Recorded as `service_visit.report_sent`
+ * once the mail server has taken it; a refused mail records nothing and is a 503.
+ */
+export async function emailServiceVisitReport(db: Db, actor: Actor, id: string, now = new Date()) {
+  const visit = await getVisitRow(db, actor, id);
+  requirePermission(actor, "instruments.manage");
+  const { bytes, fileName, report, facilityName } = await getServiceVisitReportPdf(db, actor, id, now);
+  const people = await listPeopleByFacility(db, { facilityId: actor.facilityId });
+  const to = [
+    ...new Set(
+      people
+        .filter((p) => p.role === "admin" || (visit.engineerId != null && p.userId === visit.engineerId))
+        .map((p) => p.email.trim().toLowerCase()),
+    ),
+  ].sort();
+  if (to.length === 0)
+    throw new AppError("unprocessable", "This facility has no admin or engineer to send the report to.");
+  const mail = serviceVisitReportMail({
+    facilityName,
+    title: visit.title,
+    startsAt: visit.startsAt,
+    endsAt: visit.endsAt,
+    signedOffAt: visit.signedOffAt,
+    verdicts: report.comparisons.map((c) => ({ objectiveName: c.objectiveName, verdict: c.verdict })),
+    fileName,
+    visitUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/service-visits/${visit.id}`,
+  });
+  try {
+    await sendMail({
+      to,
+      ...mail,
+      attachments: [{ filename: fileName, content: bytes, contentType: "application/pdf" }],
+    });
+  } catch (err) {
+    console.error(
+      "[service-visits] the report could not be mailed:",
+      err instanceof Error ? err.message : "unknown error",
+    );
+    throw new AppError(
+      "unavailable",
+      "The report could not be sent. Check the mail settings and try again.",
+      {
+        cause: err,
+      },
+    );
+  }
+  await insertAuditEntry(db, {
+    facilityId: actor.facilityId,
+    userId: actor.userId,
+    action: "service_visit.report_sent",
+    targetType: "service_visit",
+    targetId: visit.id,
+    details: { fileName, recipients: to },
+  });
+  return { id: visit.id, fileName, sentTo: to };
 }

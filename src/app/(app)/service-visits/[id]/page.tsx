@@ -6,9 +6,12 @@ import { requirePageActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
 import { getServiceVisitReport } from "@/server/services/service-visits";
+import { can } from "@/server/auth/permissions";
+import { SERVICE_VISIT_FOOTNOTE } from "@/server/reports/service-visit-footnote";
 import { fmtDate, fmtNum } from "@/components/format";
 import { SignOffForm } from "./_components/sign-off-form";
 import { PrintButton } from "./_components/print-button";
+import { ReportActions } from "./_components/report-actions";
 
 export const metadata: Metadata = { title: "Service visit" };
 
@@ -37,7 +40,8 @@ export default async function ServiceVisitPage({ params }: { params: Promise<{ i
         <span className="font-mono text-sm text-ink-soft">
           {fmtDate(visit.startsAt)} – {fmtDate(visit.endsAt)}
         </span>
-        <div className="ml-auto print:hidden">
+        <div className="ml-auto flex flex-wrap items-center gap-2 print:hidden">
+          <ReportActions visitId={visit.id} canEmail={can(actor, "instruments.manage")} />
           <PrintButton />
         </div>
       </div>
@@ -115,11 +119,7 @@ export default async function ServiceVisitPage({ params }: { params: Promise<{ i
           <SignOffForm visitId={visit.id} />
         )}
       </section>
-      <p className="text-xs text-ink-faint">
-        Baseline = centre and σ of the individuals chart of the last epoch before the visit.
-        &quot;Restored&quot; = as-left ratios below the acceptance limits and no more than 3σ above that
-        baseline. These numbers are advisory and do not replace the manufacturer&apos;s own acceptance tests.
-      </p>
+      <p className="text-xs text-ink-faint">{SERVICE_VISIT_FOOTNOTE}</p>
     </article>
   );
 }
