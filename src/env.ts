@@ -34,6 +34,8 @@ const envSchema = z.object({
    * Seconds an analysis job may stay active before pg-boss counts it as lost (its worker died) and
    * retries it. Must exceed the longest analysis. Tests lower it to see a killed worker's job retried.
    */
+  /** "1" when a reverse proxy in front of the app sets X-Forwarded-For (used to rate-limit per address). */
+  TRUST_PROXY: z.preprocess(emptyAsUndefined, z.enum(["0", "1"]).default("0")),
   ANALYSIS_JOB_EXPIRE_SECONDS: z.preprocess(
     emptyAsUndefined,
     z.coerce.number().int().min(1).max(86_399).default(1800),

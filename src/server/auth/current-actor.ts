@@ -8,7 +8,7 @@ import { redirect } from "next/navigation";
 import { getDb } from "../db/client";
 import { actorForToken, actorForUser, type ActorContext } from "../services/actor";
 import { AppError } from "../http/errors";
-import { hitRateLimit } from "../http/rate-limit";
+import { clientKey, hitRateLimit } from "../http/rate-limit";
 import type { Actor } from "./permissions";
 import { auth } from "./auth";
 
@@ -39,9 +39,11 @@ export async function requireApiActor(): Promise<Actor> {
     const m = /^Bearer\s+(\S+)$/i.exec(authz);
     if (!m) throw new AppError("invalid_token", "Use the header 'Authorization: Bearer <token>'.");
     // Per token (valid or not) and per address: scripts get 600 requests a minute.
-    const who = h.get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
+    const who = clientKey(h);
     const byToken = hitRateLimit(`token:${m[1]!.slice(0, 16)}`, 600, 60_000);
-    const byAddress = hitRateLimit(`token-ip:${who}`, 1200, 60_000);
+    // Per address only when a trusted proxy tells us the address.
+    const byAddress =
+      who === "direct" ? { ok: true, retryAfterS: 0 } : hitRateLimit(`token-ip:${who}`, 1200, 60_000);
     if (!byToken.ok || !byAddress.ok) {
       throw new AppError(
         "rate_limited",

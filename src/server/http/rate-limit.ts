@@ -4,6 +4,8 @@
  * processes would each keep their own counts; the account lock-out in the
  * database is the hard limit for sign-in.)
  */
+import { getEnv } from "../../env";
+
 const windows = new Map<string, { start: number; count: number }>();
 
 export function hitRateLimit(
@@ -22,4 +24,16 @@ export function hitRateLimit(
   }
   w.count++;
   return { ok: w.count <= limit, retryAfterS: Math.ceil((w.start + windowMs - now) / 1000) };
+}
+
+/**
+ * Who to count a request against. Next passes on a client-sent X-Forwarded-For, so
+ * the header is trusted only when TRUST_PROXY=1 says a reverse proxy in front of
+ * the app sets it; otherwise every request counts against one shared "direct" key.
+ */
+export function clientKey(headers: Headers): string {
+  if (getEnv().TRUST_PROXY !== "1") return "direct";
+  const forwarded = headers.get("x-forwarded-for")?.split(",");
+  // A proxy appends the address it saw: the last entry is the one it vouches for.
+  return forwarded?.[forwarded.length - 1]?.trim() || "direct";
 }

@@ -12,3 +12,22 @@ describe("hitRateLimit", () => {
     expect(hitRateLimit("other", 3, 60_000, t).ok).toBe(true);
   });
 });
+
+describe("clientKey", () => {
+  it("ignores X-Forwarded-For unless TRUST_PROXY=1, then takes the proxy's own (last) entry", async () => {
+    const { vi } = await import("vitest");
+    const load = async (trust: string | undefined) => {
+      vi.resetModules();
+      process.env.DATABASE_URL ??= "postgres://x@127.0.0.1:1/x";
+      process.env.AUTH_SECRET ??= "x".repeat(40);
+      if (trust === undefined) delete process.env.TRUST_PROXY;
+      else process.env.TRUST_PROXY = trust;
+      return (await import("@/server/http/rate-limit")).clientKey;
+    };
+    const spoofed = new Headers({ "x-forwarded-for": "1.2.3.4, 10.0.0.7" });
+    expect((await load(undefined))(spoofed)).toBe("direct");
+    expect((await load("1"))(spoofed)).toBe("10.0.0.7");
+    expect((await load("1"))(new Headers())).toBe("direct");
+    delete process.env.TRUST_PROXY;
+  });
+});

@@ -3,7 +3,7 @@ import Link from "next/link";
 import { headers } from "next/headers";
 import { redirect } from "next/navigation";
 import { getDb } from "@/server/db/client";
-import { hitRateLimit } from "@/server/http/rate-limit";
+import { clientKey, hitRateLimit } from "@/server/http/rate-limit";
 import { requestPasswordReset, requestResetSchema } from "@/server/services/password-reset";
 
 export const metadata: Metadata = { title: "Forgot your password?" };
@@ -25,7 +25,7 @@ const NOTICES: Record<string, { tone: "ok" | "bad"; text: string }> = {
  */
 async function requestResetAction(form: FormData): Promise<void> {
   "use server";
-  const who = (await headers()).get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
+  const who = clientKey(await headers());
   if (!hitRateLimit(`password-reset:${who}`, 10, 15 * 60_000).ok) redirect("/forgot-password?notice=busy");
   const parsed = requestResetSchema.safeParse({ email: String(form.get("email") ?? "") });
   if (!parsed.success) redirect("/forgot-password?notice=invalid");

@@ -4,7 +4,7 @@
 import { AuthError } from "next-auth";
 import { headers } from "next/headers";
 import { signIn, signOut } from "@/server/auth/auth";
-import { hitRateLimit } from "@/server/http/rate-limit";
+import { clientKey, hitRateLimit } from "@/server/http/rate-limit";
 
 export interface SignInState {
   error?: string;
@@ -25,8 +25,8 @@ const MESSAGES: Record<string, string> = {
 export async function signInAction(_prev: SignInState, formData: FormData): Promise<SignInState> {
   const email = String(formData.get("email") ?? "");
   // Besides the per-account lock-out: at most 30 attempts a minute from one address.
-  const who = (await headers()).get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
-  if (!hitRateLimit(`sign-in:${who}`, 30, 60_000).ok) {
+  const who = clientKey(await headers());
+  if (!hitRateLimit(`sign-in:${who}`, who === "direct" ? 60 : 30, 60_000).ok) {
     return { error: "Too many sign-in attempts from this address. Wait a minute and try again.", email };
   }
   try {
