@@ -108,6 +108,43 @@ export interface MeasurementSummary {
     fwhmXVsRadius: { slope: number | null; slopeLow: number | null; slopeHigh: number | null };
   };
   provenance: { engineVersion: string; parameters: Record<string, unknown>; stack: Record<string, unknown> };
+  /** Multi-channel stacks only; absent from summaries stored before it existed. */
+  coregistration?: ChannelCoregistrationView[] | null;
+}
+
+export interface TrendView {
+  n: number;
+  slope: number | null;
+  slopeLow: number | null;
+  slopeHigh: number | null;
+}
+
+/** One channel pair as stored by `buildSummary` (see `ChannelCoregistration` in lib/psf); µm. */
+export interface ChannelCoregistrationView {
+  referenceChannel: number;
+  testChannel: number;
+  testEmissionWavelengthNm: number;
+  testWavelengthSource: "file" | "measurement";
+  resolutionUm: { lateral: number; axial: number };
+  toleranceUm: number;
+  referenceBeads: number;
+  testBeads: number;
+  pairCount: number;
+  unmatchedReference: number;
+  unmatchedTest: number;
+  medianLateralUm: number | null;
+  medianAxialUm: number | null;
+  medianDxUm: number | null;
+  medianDyUm: number | null;
+  medianDzUm: number | null;
+  lateralRatio: number | null;
+  axialRatio: number | null;
+  lateralVsDepth: TrendView;
+  axialVsDepth: TrendView;
+  dzVsDepth: TrendView;
+  pairs: Array<{ dxUm: number; dyUm: number; dzUm: number; depthUm: number }>;
+  pairsTruncated: boolean;
+  reason: string | null;
 }
 
 export interface RegionStats {

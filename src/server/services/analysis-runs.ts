@@ -153,6 +153,8 @@ export function buildSummary(result: MeasurementPipelineResult, row: Measurement
           widefieldScale: result.effectiveRi.widefieldScale,
         }
       : { sampleRi: null, reason: result.effectiveRi.reason },
+    // Between channels of a multi-channel stack (null for one channel); pairs capped by the pipeline.
+    coregistration: result.coregistration ?? null,
     averagedPsf: psf
       ? {
           shape: psf.shape,

@@ -13,6 +13,7 @@ import { DepthProfileChart, IntensityChart } from "@/components/charts/depth-pro
 import { PsfSections, decodeFloat32 } from "@/components/charts/psf-sections";
 import { BeadTable } from "./bead-table";
 import { BeadViewer } from "./bead-viewer";
+import { CoregistrationCard } from "./coregistration-card";
 import { TroubleshootingChecklist } from "./troubleshooting-checklist";
 
 const STAGES = ["queued", "reading", "detecting", "fitting", "modelling", "saving"];
@@ -278,6 +279,7 @@ function Results({
         </section>
       </div>
       {s.field ? <FieldCard field={s.field} /> : null}
+      {s.coregistration?.length ? <CoregistrationCard pairs={s.coregistration} /> : null}
       {psf ? (
         <section className="card">
           <PsfSections
