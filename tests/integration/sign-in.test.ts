@@ -55,3 +55,17 @@ describe("password policy", () => {
     expect(checkPasswordPolicy("correct horse battery")).toBeNull();
   });
 });
+
+describe("API tokens", () => {
+  it("resolve to the owner's actor, then stop working once revoked", async () => {
+    const { createApiToken, revokeApiToken } = await import("@/server/services/api-tokens");
+    const { actorForToken } = await import("@/server/services/actor");
+    const t = await createApiToken(getDb(), f.actors.staff, { name: "bench PC", expiresInDays: 30 });
+    expect((await actorForToken(getDb(), t.token)).userId).toBe(f.actors.staff.userId);
+    // Only the owner can revoke: another user's call changes nothing.
+    await revokeApiToken(getDb(), f.actors.admin, t.id);
+    expect((await actorForToken(getDb(), t.token)).role).toBe("staff");
+    await revokeApiToken(getDb(), f.actors.staff, t.id);
+    await expect(actorForToken(getDb(), t.token)).rejects.toMatchObject({ code: "invalid_token" });
+  });
+});

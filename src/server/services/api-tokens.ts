@@ -61,8 +61,20 @@ export async function listApiTokens(db: Db, actor: Actor) {
 }
 
 export async function revokeApiToken(db: Db, actor: Actor, id: string) {
-  await db
-    .update(apiTokens)
-    .set({ revokedAt: new Date() })
-    .where(and(eq(apiTokens.id, id), eq(apiTokens.userId, actor.userId)));
+  await db.transaction(async (tx) => {
+    const rows = await tx
+      .update(apiTokens)
+      .set({ revokedAt: new Date() })
+      .where(and(eq(apiTokens.id, id), eq(apiTokens.userId, actor.userId), isNull(apiTokens.revokedAt)))
+      .returning({ id: apiTokens.id });
+    if (rows.length) {
+      await insertAuditEntry(tx, {
+        facilityId: actor.facilityId,
+        userId: actor.userId,
+        action: "api_token.revoke",
+        targetType: "api_token",
+        targetId: id,
+      });
+    }
+  });
 }

@@ -6,7 +6,7 @@ import { getDb } from "@/server/db/client";
 import { inviteUserSchema } from "@/contracts/invitations";
 import { AppError } from "@/server/http/errors";
 import { formToObject, validatedAction, type ActionState } from "@/server/http/validated-action";
-import { createApiToken } from "@/server/services/api-tokens";
+import { createApiToken, revokeApiToken } from "@/server/services/api-tokens";
 import { inviteUser, revokeInvitation } from "@/server/services/invitations";
 import { changeRole as changeRoleService } from "@/server/services/people";
 
@@ -69,4 +69,13 @@ const changeRole = validatedAction(
 
 export async function changeRoleAction(prev: ActionState, form: FormData) {
   return changeRole(prev, form);
+}
+
+/** Revoke one of the signed-in user's own tokens (the service only touches the caller's tokens). */
+export async function revokeTokenAction(form: FormData): Promise<void> {
+  const actor = await requireApiActor();
+  const tokenId = z.uuid().safeParse(form.get("tokenId"));
+  if (!tokenId.success) return;
+  await revokeApiToken(getDb(), actor, tokenId.data);
+  revalidatePath("/settings");
 }

@@ -14,6 +14,7 @@ import { requireApiActor } from "@/server/auth/current-actor";
 import { fmtDate } from "@/components/format";
 import { TokenForm } from "./_components/token-form";
 import { RoleSelect } from "./_components/role-select";
+import { revokeTokenAction } from "./actions";
 import { InviteForm, RevokeInvitationButton } from "./_components/invite-form";
 
 export const metadata: Metadata = { title: "Settings" };
@@ -208,12 +209,13 @@ export default async function SettingsPage() {
               <th>Created</th>
               <th>Last used</th>
               <th>Expires</th>
+              <th></th>
             </tr>
           </thead>
           <tbody>
             {tokens.length === 0 ? (
               <tr>
-                <td colSpan={5} className="text-ink-soft">
+                <td colSpan={6} className="text-ink-soft">
                   No tokens yet.
                 </td>
               </tr>
@@ -225,6 +227,12 @@ export default async function SettingsPage() {
                   <td className="font-mono">{fmtDate(t.createdAt)}</td>
                   <td className="font-mono">{fmtDate(t.lastUsedAt)}</td>
                   <td className="font-mono">{fmtDate(t.expiresAt)}</td>
+                  <td>
+                    <form action={revokeTokenAction}>
+                      <input type="hidden" name="tokenId" value={t.id} />
+                      <button className="btn-quiet py-0.5 text-xs">Revoke</button>
+                    </form>
+                  </td>
                 </tr>
               ))
             )}
