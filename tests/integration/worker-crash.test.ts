@@ -221,12 +221,19 @@ describe("a worker killed mid-job", () => {
     expect(new Set(beads.map((b) => b.index)).size).toBe(beads.length);
     expect(beads.length).toBe(summary.beads.found);
 
-    // pg-boss's own record: the job expired once and its retry completed.
-    const jobs = await m.db
-      .getDb()
-      .execute(
-        sql`SELECT state, retry_count FROM pgboss.job WHERE name = 'analyze-measurement' AND data->>'measurementId' = ${id}`,
-      );
+    // pg-boss's own record: the job expired once and its retry completed. The queue marks
+    // the job complete just after the handler returns, so allow it a moment.
+    const jobState = () =>
+      m.db
+        .getDb()
+        .execute(
+          sql`SELECT state, retry_count FROM pgboss.job WHERE name = 'analyze-measurement' AND data->>'measurementId' = ${id}`,
+        );
+    let jobs = await jobState();
+    for (let i = 0; i < 50 && jobs.rows[0]?.state === "active"; i++) {
+      await new Promise((r) => setTimeout(r, 200));
+      jobs = await jobState();
+    }
     expect(jobs.rows).toEqual([{ state: "completed", retry_count: 1 }]);
 
     // Expiry (15 s after the start) + maintenance (≤ 3 s) + retry delay (5–10 s) + the analysis.
