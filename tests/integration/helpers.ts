@@ -3,10 +3,17 @@
  * the test database (a fresh database per `npm test` run, dropped afterwards).
  */
 import { randomUUID } from "node:crypto";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { getDb } from "@/server/db/client";
+import { getStorage } from "@/server/storage/get-storage";
+import { registerStackFromFile } from "@/server/services/stacks";
+import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
 import {
   facilities,
   instruments,
+  measurements,
   memberships,
   objectives,
   serviceVisitInstruments,
@@ -93,4 +100,58 @@ export async function makeFacility(label: string): Promise<TestFacility> {
     .returning();
   await db.insert(serviceVisitInstruments).values({ visitId: visit!.id, instrumentId: i1!.id });
   return { facilityId, actors, instrumentIds: [i1!.id, i2!.id], objectiveIds: [o1!.id, o2!.id], passwords };
+}
+
+const DAY_MS = 86_400_000;
+
+/** Register a tiny invented bead stack (2 beads, 40×64×64) as `actor`; returns its id. */
+export async function registerTinyStack(actor: Actor): Promise<string> {
+  const dir = mkdtempSync(path.join(tmpdir(), "bb-tiny-"));
+  try {
+    const file = path.join(dir, "s.tif");
+    const demo = makeDemoBeadStack({
+      na: 1.4,
+      immersionRi: 1.518,
+      sampleRi: 1.518,
+      emissionWavelengthNm: 520,
+      beadCount: 2,
+      shape: [40, 64, 64],
+    });
+    writeFileSync(file, demo.tiff);
+    return (await registerStackFromFile(getDb(), getStorage(), actor, { filePath: file, fileName: "s.tif" }))
+      .id;
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+/**
+ * A finished check with the given measured/theory ratios, inserted directly: for
+ * logic that reads only the stored summary (trends, visits, reports). Invented data.
+ */
+export async function insertFinishedCheck(input: {
+  facilityId: string;
+  stackId: string;
+  objectiveId: string;
+  daysAgo: number;
+  purpose: "routine" | "baseline" | "pre-service" | "post-service";
+  lateral: number;
+  axial: number;
+}): Promise<void> {
+  await getDb()
+    .insert(measurements)
+    .values({
+      facilityId: input.facilityId,
+      stackId: input.stackId,
+      objectiveId: input.objectiveId,
+      purpose: input.purpose,
+      status: "done",
+      modality: "widefield",
+      parameters: {},
+      summary: {
+        ratios: { lateral: input.lateral, axial: input.axial },
+        theory: { formulaId: "widefield-airy-nonparaxial-axial", formulaVersion: "1.0.0" },
+      },
+      acquiredAt: new Date(Date.now() - input.daysAgo * DAY_MS),
+    });
 }

@@ -7,20 +7,15 @@
  * stream (node:zlib) and decode the strings of its `Tj` operators — the text that
  * is actually drawn in the file, not a parallel rendering.
  */
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
 import { inflateSync } from "node:zlib";
 import { and, eq } from "drizzle-orm";
 import { PDFArray, PDFDocument, PDFName, PDFRawStream, type PDFObject } from "pdf-lib";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { closeDb, getDb } from "@/server/db/client";
-import { auditLog, measurements, users } from "@/server/db/schema";
+import { auditLog, users } from "@/server/db/schema";
 import type { Actor } from "@/server/auth/permissions";
 import { closeMailer } from "@/server/mail/mailer";
 import { renderServiceVisitPdf } from "@/server/reports/service-visit-pdf";
-import { getStorage } from "@/server/storage/get-storage";
-import { registerStackFromFile } from "@/server/services/stacks";
 import {
   createServiceVisit,
   emailServiceVisitReport,
@@ -28,8 +23,7 @@ import {
   getServiceVisitReportPdf,
   signOffServiceVisit,
 } from "@/server/services/service-visits";
-import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
-import { makeFacility, type TestFacility } from "./helpers";
+import { insertFinishedCheck, makeFacility, registerTinyStack, type TestFacility } from "./helpers";
 import { startSmtpCapture, type SmtpCapture } from "./smtp-capture";
 
 // The route handlers are called directly with a chosen actor (no session in these tests).
@@ -50,23 +44,16 @@ const REPORT_TEXT =
   "Cleaned the 0.17 µm bead slide.\n\n" +
   "Firmware 4.2 – no change. ".repeat(300);
 
-async function check(objectiveId: string, daysAgo: number, purpose: string, lateral: number, axial: number) {
-  await getDb()
-    .insert(measurements)
-    .values({
-      facilityId: f.facilityId,
-      stackId,
-      objectiveId,
-      purpose: purpose as "routine",
-      status: "done",
-      modality: "widefield",
-      parameters: {},
-      summary: {
-        ratios: { lateral, axial },
-        theory: { formulaId: "widefield-airy-nonparaxial-axial", formulaVersion: "1.0.0" },
-      },
-      acquiredAt: new Date(Date.now() - daysAgo * DAY),
-    });
+function check(objectiveId: string, daysAgo: number, purpose: string, lateral: number, axial: number) {
+  return insertFinishedCheck({
+    facilityId: f.facilityId,
+    stackId,
+    objectiveId,
+    daysAgo,
+    purpose: purpose as "routine",
+    lateral,
+    axial,
+  });
 }
 
 // Source: from memory (code page 1252, bytes 0x80–0x9F; the rest of WinAnsi is Latin-1). Written out because
@@ -130,23 +117,7 @@ beforeAll(async () => {
   process.env.APP_URL = "http://localhost:3999";
   f = await makeFacility("visit-pdf");
   other = await makeFacility("visit-pdf-other");
-  const dir = mkdtempSync(path.join(tmpdir(), "bb-visit-pdf-"));
-  const file = path.join(dir, "s.tif");
-  writeFileSync(
-    file,
-    makeDemoBeadStack({
-      na: 1.4,
-      immersionRi: 1.518,
-      sampleRi: 1.518,
-      emissionWavelengthNm: 520,
-      beadCount: 2,
-      shape: [40, 64, 64],
-    }).tiff,
-  );
-  stackId = (
-    await registerStackFromFile(getDb(), getStorage(), f.actors.staff, { filePath: file, fileName: "s.tif" })
-  ).id;
-  rmSync(dir, { recursive: true, force: true });
+  stackId = await registerTinyStack(f.actors.staff);
   // Invented ratios: a lens restored after service, and one left far above its tight baseline.
   const [o1, o2] = f.objectiveIds;
   await check(o1, 200, "baseline", 1.1, 1.12);

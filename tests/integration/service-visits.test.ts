@@ -1,68 +1,37 @@
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/server/db/client";
-import { measurements } from "@/server/db/schema";
-import { getStorage } from "@/server/storage/get-storage";
-import { registerStackFromFile } from "@/server/services/stacks";
 import {
   createServiceVisit,
   getServiceVisitReport,
   signOffServiceVisit,
 } from "@/server/services/service-visits";
-import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
-import { makeFacility, type TestFacility } from "./helpers";
+import { insertFinishedCheck, makeFacility, registerTinyStack, type TestFacility } from "./helpers";
 
 let f: TestFacility;
 let stackId: string;
 const DAY = 86_400_000;
 
-/** A finished check with the given ratios (the visit logic reads only the stored summary). */
-async function check(
+function check(
   objectiveId: string,
   daysAgo: number,
   purpose: "routine" | "baseline" | "pre-service" | "post-service",
   lateral: number,
   axial: number,
 ) {
-  await getDb()
-    .insert(measurements)
-    .values({
-      facilityId: f.facilityId,
-      stackId,
-      objectiveId,
-      purpose,
-      status: "done",
-      modality: "widefield",
-      parameters: {},
-      summary: {
-        ratios: { lateral, axial },
-        theory: { formulaId: "widefield-airy-nonparaxial-axial", formulaVersion: "1.0.0" },
-      },
-      acquiredAt: new Date(Date.now() - daysAgo * DAY),
-    });
+  return insertFinishedCheck({
+    facilityId: f.facilityId,
+    stackId,
+    objectiveId,
+    daysAgo,
+    purpose,
+    lateral,
+    axial,
+  });
 }
 
 beforeAll(async () => {
   f = await makeFacility("visit");
-  const dir = mkdtempSync(path.join(tmpdir(), "bb-visit-"));
-  const file = path.join(dir, "s.tif");
-  writeFileSync(
-    file,
-    makeDemoBeadStack({
-      na: 1.4,
-      immersionRi: 1.518,
-      sampleRi: 1.518,
-      emissionWavelengthNm: 520,
-      beadCount: 2,
-      shape: [40, 64, 64],
-    }).tiff,
-  );
-  stackId = (
-    await registerStackFromFile(getDb(), getStorage(), f.actors.staff, { filePath: file, fileName: "s.tif" })
-  ).id;
-  rmSync(dir, { recursive: true, force: true });
+  stackId = await registerTinyStack(f.actors.staff);
   const o = f.objectiveIds[0];
   await check(o, 200, "baseline", 1.1, 1.12);
   for (const [d, l, a] of [
