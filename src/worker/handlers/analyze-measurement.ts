@@ -76,9 +76,13 @@ export async function analyzeMeasurement(data: unknown, attempt: { retryCount: n
   let saved: boolean;
   try {
     const bytes = await getStorage().getBytes(storageKey);
-    // Copy into a buffer of its own so it can be transferred to the thread.
-    const own = new Uint8Array(bytes.byteLength);
-    own.set(bytes);
+    // Transfer the bytes to the thread without a copy when they own their whole buffer
+    // (a large file read is); copy only a view into a shared or pooled buffer.
+    const ownsBuffer =
+      bytes.byteOffset === 0 &&
+      bytes.byteLength === bytes.buffer.byteLength &&
+      bytes.buffer instanceof ArrayBuffer;
+    const own = ownsBuffer ? bytes : bytes.slice();
     const result = await runInThread(own, row.parameters as StoredParameters, (stage, fraction) => {
       void reportProgress(db, row.id, STAGE_OF[stage] ?? stage, fraction).catch(() => {});
     });
