@@ -10,7 +10,8 @@
 import { and, desc, eq, sql } from "drizzle-orm";
 import { checkReminders, type CheckReminders } from "../../lib/qc";
 import type { Db } from "../db/client";
-import { auditLog, facilities } from "../db/schema";
+import { forEachFacility } from "./for-each-facility";
+import { auditLog } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { listInstrumentsByFacility, listObjectivesByFacility } from "../db/queries/instruments";
 import { requirePermission, type Actor } from "../auth/permissions";
@@ -157,30 +158,19 @@ export async function sendReminderDigests(
   db: Db,
   { now = new Date() }: { now?: Date } = {},
 ): Promise<ReminderRun[]> {
-  const all = await db
-    .select({ id: facilities.id, name: facilities.name, timezone: facilities.timezone })
-    .from(facilities)
-    .orderBy(facilities.name);
-  const runs: ReminderRun[] = [];
-  for (const facility of all) {
-    try {
-      runs.push(await sendFacilityReminder(db, facility, now));
-    } catch (err) {
-      console.error(
-        `[reminders] digest for facility ${facility.id} failed:`,
-        err instanceof Error ? err.message : "unknown error",
-      );
-      runs.push({
-        facilityId: facility.id,
-        facilityName: facility.name,
-        day: facilityDay(now, facility.timezone).day,
-        outcome: "failed",
-        recipients: 0,
-        items: 0,
-      });
-    }
-  }
-  return runs;
+  return forEachFacility(
+    db,
+    "reminders",
+    (facility) => sendFacilityReminder(db, facility, now),
+    (facility) => ({
+      facilityId: facility.id,
+      facilityName: facility.name,
+      day: facilityDay(now, facility.timezone).day,
+      outcome: "failed",
+      recipients: 0,
+      items: 0,
+    }),
+  );
 }
 
 /** For the settings page: the latest digest sent to the actor's facility. */

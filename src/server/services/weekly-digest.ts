@@ -10,7 +10,8 @@ import { and, eq, sql } from "drizzle-orm";
 import { buildWeeklyDigest, isoWeek, type WeeklyDigest } from "../../lib/qc/weekly-digest";
 import type { VerdictLevel } from "../../lib/qc";
 import type { Db } from "../db/client";
-import { auditLog, facilities } from "../db/schema";
+import { forEachFacility } from "./for-each-facility";
+import { auditLog } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { listInstrumentsByFacility, listObjectivesByFacility } from "../db/queries/instruments";
 import { listChecksByObjective, listEventsByObjective } from "../db/queries/logbook";
@@ -174,27 +175,16 @@ export async function sendWeeklyDigests(
   db: Db,
   { now = new Date() }: { now?: Date } = {},
 ): Promise<WeeklyDigestRun[]> {
-  const all = await db
-    .select({ id: facilities.id, name: facilities.name, timezone: facilities.timezone })
-    .from(facilities)
-    .orderBy(facilities.name);
-  const runs: WeeklyDigestRun[] = [];
-  for (const facility of all) {
-    try {
-      runs.push(await sendFacilityWeeklyDigest(db, facility, now));
-    } catch (err) {
-      console.error(
-        `[weekly-digest] summary for facility ${facility.id} failed:`,
-        err instanceof Error ? err.message : "unknown error",
-      );
-      runs.push({
-        facilityId: facility.id,
-        facilityName: facility.name,
-        week: isoWeek(now),
-        outcome: "failed",
-        recipients: 0,
-      });
-    }
-  }
-  return runs;
+  return forEachFacility(
+    db,
+    "weekly-digest",
+    (facility) => sendFacilityWeeklyDigest(db, facility, now),
+    (facility) => ({
+      facilityId: facility.id,
+      facilityName: facility.name,
+      week: isoWeek(now),
+      outcome: "failed",
+      recipients: 0,
+    }),
+  );
 }
