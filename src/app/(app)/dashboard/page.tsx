@@ -4,6 +4,7 @@ import { requirePageActor } from "@/server/auth/current-actor";
 import { getDashboard } from "@/server/services/dashboard";
 import { getDb } from "@/server/db/client";
 import { StatusBadge } from "@/components/status-badge";
+import { MeasurementList } from "@/components/measurement-list";
 import { fmtDate, fmtNum } from "@/components/format";
 
 export const metadata: Metadata = { title: "Dashboard" };
@@ -106,30 +107,7 @@ export default async function DashboardPage() {
           {data.recent.length === 0 ? (
             <p className="text-sm text-ink-soft">No measurements yet.</p>
           ) : (
-            <table className="data-table">
-              <thead>
-                <tr>
-                  <th>Date</th>
-                  <th>Objective</th>
-                  <th>Purpose</th>
-                  <th>State</th>
-                  <th>By</th>
-                </tr>
-              </thead>
-              <tbody>
-                {data.recent.map((m) => (
-                  <tr key={m.id}>
-                    <td className="font-mono">
-                      <Link href={`/measurements/${m.id}`}>{fmtDate(m.acquiredAt)}</Link>
-                    </td>
-                    <td>{m.objectiveName}</td>
-                    <td>{m.purpose}</td>
-                    <td>{m.status}</td>
-                    <td>{m.createdByName ?? "—"}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <MeasurementList items={data.recent} show="objective" />
           )}
         </section>
       </div>

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { requirePageActor } from "@/server/auth/current-actor";
@@ -12,6 +11,7 @@ import { EventForm } from "./_components/event-form";
 import { LimitsForm } from "./_components/limits-form";
 import { StatusOnDate } from "./_components/status-on-date";
 import { StatusBadge } from "@/components/status-badge";
+import { MeasurementList } from "@/components/measurement-list";
 import { fmtDate, fmtNum } from "@/components/format";
 
 export const metadata: Metadata = { title: "Objective" };
@@ -137,30 +137,7 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
         {measurements.length === 0 ? (
           <p className="text-sm text-ink-soft">No measurements of this objective yet.</p>
         ) : (
-          <table className="data-table">
-            <thead>
-              <tr>
-                <th>Acquired</th>
-                <th>Purpose</th>
-                <th>State</th>
-                <th>Stack</th>
-                <th>By</th>
-              </tr>
-            </thead>
-            <tbody>
-              {measurements.map((m) => (
-                <tr key={m.id}>
-                  <td className="font-mono">
-                    <Link href={`/measurements/${m.id}`}>{fmtDate(m.acquiredAt)}</Link>
-                  </td>
-                  <td>{m.purpose}</td>
-                  <td>{m.status}</td>
-                  <td>{m.fileName}</td>
-                  <td>{m.createdByName ?? "—"}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <MeasurementList items={measurements} show="stack" />
         )}
       </section>
     </div>
