@@ -48,7 +48,7 @@ export async function openBrowser(): Promise<Session> {
   page.on("console", (msg) => {
     // `next dev` (only) logs this under our CSP; a production build never does.
     if (msg.text().includes("React requires eval() in development mode")) return;
-    if (msg.type() === "error") problems.push(`console: ${msg.text()}`);
+    if (msg.type() === "error") problems.push(`console: ${msg.text()} @ ${msg.location().url}`);
   });
   page.on("pageerror", (err) => problems.push(`page error: ${err.message}`));
   page.on("requestfailed", (req) => {
