@@ -124,6 +124,8 @@ describe("hostile input", () => {
     expect(res.headers.get("x-content-type-options")).toBe("nosniff");
     expect(res.headers.get("content-security-policy")).toContain("frame-ancestors 'none'");
     expect(res.headers.get("x-powered-by")).toBeNull();
+    // The browser's own favicon request must not 404 (it shows as a console error).
+    expect((await fetch(`${BASE_URL}/favicon.ico`)).status).toBe(200);
   });
 });
 
