@@ -5,24 +5,6 @@ const securityHeaders = [
   { key: "X-Frame-Options", value: "DENY" },
   { key: "Referrer-Policy", value: "same-origin" },
   { key: "Permissions-Policy", value: "camera=(), microphone=(), geolocation=()" },
-  {
-    key: "Content-Security-Policy",
-    // Next's App Router streams its payload with inline scripts, so script-src needs
-    // 'unsafe-inline' unless every page is rendered with a per-request nonce.
-    // Everything is still restricted to our own origin; nothing is loaded from elsewhere.
-    value: [
-      "default-src 'self'",
-      "script-src 'self' 'unsafe-inline'",
-      "style-src 'self' 'unsafe-inline'",
-      "img-src 'self' data: blob:",
-      "font-src 'self'",
-      "connect-src 'self'",
-      "object-src 'none'",
-      "base-uri 'self'",
-      "form-action 'self'",
-      "frame-ancestors 'none'",
-    ].join("; "),
-  },
 ];
 
 /** @type {import('next').NextConfig} */
@@ -38,8 +20,16 @@ const nextConfig = {
   async rewrites() {
     return [{ source: "/favicon.ico", destination: "/icon.svg" }];
   },
+  // Pages get their Content-Security-Policy, with a per-request script nonce, from
+  // src/proxy.ts. API answers are data, never documents: nothing in them may load or run.
   async headers() {
-    return [{ source: "/:path*", headers: securityHeaders }];
+    return [
+      { source: "/:path*", headers: securityHeaders },
+      {
+        source: "/api/:path*",
+        headers: [{ key: "Content-Security-Policy", value: "default-src 'none'; frame-ancestors 'none'" }],
+      },
+    ];
   },
 };
 

@@ -3,6 +3,7 @@ import "@fontsource/inter/600.css";
 import "@fontsource/roboto-mono/400.css";
 import "./globals.css";
 import type { Metadata } from "next";
+import { connection } from "next/server";
 import type { ReactNode } from "react";
 import { Providers } from "./providers";
 
@@ -12,7 +13,10 @@ export const metadata: Metadata = {
   icons: { icon: "/icon.svg" },
 };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // Render every page per request: its scripts carry that response's CSP nonce
+  // (src/proxy.ts), which a page prerendered at build time could not know.
+  await connection();
   return (
     <html lang="en">
       <body className="min-h-screen antialiased">

@@ -124,8 +124,73 @@ describe("hostile input", () => {
     expect(res.headers.get("x-content-type-options")).toBe("nosniff");
     expect(res.headers.get("content-security-policy")).toContain("frame-ancestors 'none'");
     expect(res.headers.get("x-powered-by")).toBeNull();
+    const apiRes = await fetch(`${BASE_URL}/api/v1/openapi.json`);
+    expect(apiRes.headers.get("content-security-policy")).toBe("default-src 'none'; frame-ancestors 'none'");
     // The browser's own favicon request must not 404 (it shows as a console error).
     expect((await fetch(`${BASE_URL}/favicon.ico`)).status).toBe(200);
+  });
+});
+
+describe("content security policy", () => {
+  // Source: W3C Content Security Policy Level 3, §"nonce-source" and 'strict-dynamic';
+  // OWASP CSP Cheat Sheet ("strict" nonce-based policy, no 'unsafe-inline' for scripts).
+  const scriptSrc = (policy: string | null) =>
+    (policy ?? "")
+      .split(";")
+      .map((d) => d.trim())
+      .find((d) => d.startsWith("script-src")) ?? "";
+
+  it("gives every page a fresh script nonce and no inline-script hole", async () => {
+    const nonces = new Set<string>();
+    for (const pagePath of ["/sign-in", "/sign-in", "/forgot-password"]) {
+      const res = await fetch(`${BASE_URL}${pagePath}`);
+      const policy = res.headers.get("content-security-policy");
+      const src = scriptSrc(policy);
+      expect(src).not.toContain("'unsafe-inline'");
+      expect(src).not.toContain("'unsafe-eval'");
+      const nonce = /'nonce-([A-Za-z0-9+/=]+)'/.exec(src)?.[1];
+      expect(nonce, src).toBeDefined();
+      expect(Buffer.from(nonce!, "base64").length).toBeGreaterThanOrEqual(16); // ≥ 128 bits
+      nonces.add(nonce!);
+      // Every script the page ships carries this response's nonce.
+      const html = await res.text();
+      const scripts = html.match(/<script\b[^>]*>/g) ?? [];
+      expect(scripts.length).toBeGreaterThan(0);
+      for (const tag of scripts) expect(tag).toContain(`nonce="${nonce}"`);
+    }
+    expect(nonces.size).toBe(3);
+  });
+
+  it("makes the browser refuse a script injected into a page", async () => {
+    const s = await openBrowser();
+    try {
+      // Play the attacker: splice an inline script and an inline event handler into the
+      // real page on its way to the browser, keeping the server's own headers.
+      await s.page.route(`${BASE_URL}/sign-in`, async (route) => {
+        const res = await route.fetch();
+        const html = (await res.text()).replace(
+          "<body",
+          '<img src="/icon.svg" onload="window.__handler=1"><script>window.__inline=1</script><body',
+        );
+        await route.fulfill({ response: res, body: html });
+      });
+      await s.page.goto(`${BASE_URL}/sign-in`);
+      // The page's own (nonce-bearing) scripts still run: React hydrates the form.
+      await s.page.waitForFunction(() => {
+        const email = document.querySelector("#email");
+        return !!email && Object.keys(email).some((k) => k.startsWith("__reactFiber"));
+      });
+      const ran = await s.page.evaluate(() => {
+        const w = window as unknown as { __inline?: number; __handler?: number };
+        return { inline: w.__inline, handler: w.__handler };
+      });
+      expect(ran).toEqual({ inline: undefined, handler: undefined });
+      // The browser reports each refusal; nothing else went wrong.
+      expect(s.problems.some((p) => p.includes("Content Security Policy"))).toBe(true);
+      expect(s.problems.every((p) => p.includes("Content Security Policy"))).toBe(true);
+    } finally {
+      await s.close();
+    }
   });
 });
 
