@@ -52,8 +52,10 @@ function transportFor(url: string): Transporter {
   const cached = globalForMail.beadbenchMailTransport;
   if (cached?.url === url) return cached.transport;
   cached?.transport.close();
-  const transport = nodemailer.createTransport(url, {
-    // A hung mail server must not hang a page or a job.
+  const transport = nodemailer.createTransport({
+    url,
+    // A hung mail server must not hang a page or a job. (These are connection options:
+    // given as createTransport's second argument they would only be message defaults.)
     connectionTimeout: 10_000,
     greetingTimeout: 10_000,
     socketTimeout: 30_000,
