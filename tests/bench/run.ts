@@ -13,10 +13,16 @@ interface Row {
   target?: string;
 }
 
+/** Named groups; any other argument selects the files whose name contains it. */
+const GROUPS: Record<string, string[]> = {
+  // `npm run bench:load`: the running app under many users, then query latency at 10k / 1M rows.
+  load: ["load.bench.ts", "scale.bench.ts"],
+};
+
 const dir = path.dirname(fileURLToPath(import.meta.url));
 const only = process.argv[2];
 const files = readdirSync(dir)
-  .filter((f) => f.endsWith(".bench.ts") && (!only || f.includes(only)))
+  .filter((f) => f.endsWith(".bench.ts") && (!only || (GROUPS[only]?.includes(f) ?? f.includes(only))))
   .sort();
 
 for (const f of files) {
