@@ -415,6 +415,8 @@ async function coregisterOtherChannels(
 /** Depth bins needed, and the depth they must span, before an index fit means anything. */
 const MIN_FIT_BINS = 3;
 const MIN_FIT_SPAN_UM = 3;
+/** How far above the estimated coverslip a depth bin may sit and still count as at the surface. */
+const ABOVE_SURFACE_TOLERANCE_UM = 1;
 
 /**
  * Fit the effective sample RI to the per-depth median axial widths. The model is
@@ -423,16 +425,20 @@ const MIN_FIT_SPAN_UM = 3;
  * the relative broadening with depth drives the fit (an approximation, stated in
  * the result).
  */
-function fitSampleRi(
-  analysis: AnalyzeStackResult,
+export function fitSampleRi(
+  analysis: Pick<AnalyzeStackResult, "depthProfile">,
   params: MeasurementParameters,
   theory: TheoreticalFwhm,
   gl: { na: number; wavelengthNm: number; immersionRi: number; coverslipThicknessUm: number },
 ): MeasurementPipelineResult["effectiveRi"] {
   const rows = analysis.depthProfile
     .filter((r) => r.count >= 2 && r.fwhmZ.medianUm != null)
+    // The coverslip reference is a low percentile of the beads' positions, so the shallowest
+    // bin can sit a little above it; those beads are at the surface within that estimate.
+    // A bin far above the surface is not in the sample and does not inform the fit.
+    .filter((r) => r.apparentDepthMedianUm >= -ABOVE_SURFACE_TOLERANCE_UM)
     .map((r) => ({
-      depth: r.apparentDepthMedianUm,
+      depth: Math.max(0, r.apparentDepthMedianUm),
       axial: r.fwhmZ.medianUm!,
       lateral: r.fwhmX.medianUm,
       asym: r.medianAxialAsymmetry,
