@@ -157,6 +157,9 @@ export function IntensityChart({ summary, beads }: { summary: MeasurementSummary
       layout={{
         ...baseLayout,
         height: 300,
+        // A short chart: the legend's offset is a fraction of the plot height, so it must
+        // go further down to clear the x-axis title.
+        legend: { ...baseLayout.legend, y: -0.42 },
         xaxis: axis("actual depth below the coverslip (µm)"),
         yaxis: { ...axis("relative peak intensity"), rangemode: "tozero" },
       }}
