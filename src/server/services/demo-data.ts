@@ -122,11 +122,12 @@ const DEMO_OBJECTIVES = [
 
 export async function seedDemoData(db: Db, passwords: Record<Role, string>) {
   return db.transaction(async (tx) => {
-    const [facility] = await tx
+    // Insert once, then read: an upsert would rewrite the row (and its updated_at) on every start.
+    await tx
       .insert(facilities)
       .values({ ...DEMO_FACILITY, timezone: "Europe/London" })
-      .onConflictDoUpdate({ target: facilities.slug, set: { name: DEMO_FACILITY.name } })
-      .returning();
+      .onConflictDoNothing({ target: facilities.slug });
+    const [facility] = await tx.select().from(facilities).where(eq(facilities.slug, DEMO_FACILITY.slug));
     const facilityId = facility!.id;
 
     const userIds: Partial<Record<Role, string>> = {};
