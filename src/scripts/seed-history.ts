@@ -1,10 +1,12 @@
 /**
  * Demo history: about a year of invented monthly checks for four demo objectives,
  * each a real synthetic bead stack (Gibson–Lanni rendered, broadened by a
- * per-check "degradation") run through the real analysis by the worker. The
- * story: the 63× oil lens drifts as its immersion oil ages, the 40× air lens is
- * overdue, the 100× oil lens fails and is restored by a service visit, the 60×
- * water lens stays steady. Runs once: skipped when the demo facility has checks.
+ * per-check "degradation") queued for the worker, which runs the real analysis. The
+ * story: the 63× oil lens drifts as its immersion oil ages ("watch"), the 40× air
+ * lens is overdue, the 100× oil lens fails and is restored by a signed-off service
+ * visit, the 60× water lens stays steady; the other two lenses have no data.
+ * Runs once: skipped when the demo facility has checks.
+ * tests/integration/demo-history.test.ts checks this story through the services.
  */
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -15,12 +17,14 @@ import { makeRng } from "../../fixtures/synthetic-stack";
 import type { Db } from "../server/db/client";
 import {
   facilities,
+  logbookEvents,
   measurements,
   memberships,
   objectives,
   serviceVisitInstruments,
   serviceVisits,
   users,
+  type Objective,
 } from "../server/db/schema";
 import type { Actor } from "../server/auth/permissions";
 import { addLogbookEvent } from "../server/services/logbook";
@@ -41,6 +45,8 @@ interface Plan {
     monthIndex: number;
     kind: "baseline_start" | "cleaned" | "service" | "immersion_changed";
     note: string;
+    /** Hours from that month's check (negative = before it). */
+    offsetHours: number;
   }>;
   /** Days before today of the newest check. */
   lastCheckDaysAgo: number;
@@ -54,15 +60,22 @@ const PLANS: Plan[] = [
     emissionWavelengthNm: 520,
     excitationWavelengthNm: 488,
     modality: "confocal",
-    degradation: [1.08, 1.1, 1.09, 1.11, 1.1, 1.09, 1.12, 1.16, 1.2, 1.24],
+    // Steady for the baseline block, then drifting after month 9 as the oil ages.
+    degradation: [1.1, 1.08, 1.11, 1.08, 1.1, 1.09, 1.11, 1.1, 1.09, 1.12, 1.16, 1.2, 1.24],
     purposes: { 0: "baseline" },
     events: [
       {
         monthIndex: 0,
         kind: "baseline_start",
         note: "Baseline after installation on Confocal North (demo).",
+        offsetHours: -1,
       },
-      { monthIndex: 6, kind: "immersion_changed", note: "Opened a new bottle of immersion oil (demo)." },
+      {
+        monthIndex: 9,
+        kind: "immersion_changed",
+        note: "Opened a new bottle of immersion oil (demo).",
+        offsetHours: -1,
+      },
     ],
     lastCheckDaysAgo: 6,
   },
@@ -90,8 +103,19 @@ const PLANS: Plan[] = [
     degradation: [1.1, 1.11, 1.1, 1.12, 1.11, 1.12, 1.14, 1.17, 1.62, 1.1, 1.11, 1.12, 1.1],
     purposes: { 0: "baseline", 8: "pre-service", 9: "post-service" },
     events: [
-      { monthIndex: 8, kind: "cleaned", note: "Cleaned after the failed check; no improvement (demo)." },
-      { monthIndex: 9, kind: "service", note: "Front element replaced under the service contract (demo)." },
+      // After the failed as-found check (the note says so), before the as-left check.
+      {
+        monthIndex: 8,
+        kind: "cleaned",
+        note: "Cleaned after the failed check; no improvement (demo).",
+        offsetHours: 1,
+      },
+      {
+        monthIndex: 9,
+        kind: "service",
+        note: "Front element replaced under the service contract (demo).",
+        offsetHours: -1,
+      },
     ],
     visit: { from: 8, to: 9, title: "Repair of the 100× oil objective (demo)" },
     lastCheckDaysAgo: 3,
@@ -105,66 +129,75 @@ const OBJECTIVE_OPTICS: Record<string, { na: number; immersionRi: number }> = {
   "OBJ-O100-5521": { na: 1.45, immersionRi: 1.518 },
 };
 
-export async function seedDemoHistory(db: Db, storage: ObjectStorage): Promise<number> {
+const DAY_MS = 86_400_000;
+const HOUR_MS = 3_600_000;
+
+export interface SeedHistoryOptions {
+  /** The clock every invented date is counted back from. @default the current time */
+  now?: Date;
+}
+
+/**
+ * Seed the history once; returns how many checks were queued (0 when skipped).
+ *
+ * Two phases, so an interrupted first run (the stacks take most of the time) leaves
+ * no checks behind and the next run seeds the whole story: first every stack is
+ * rendered and stored (deterministic bytes, so a re-run reuses the stored stacks),
+ * then the visit, the events and the checks are written in one short pass. Visits
+ * and events are only added when not already there.
+ */
+export async function seedDemoHistory(
+  db: Db,
+  storage: ObjectStorage,
+  options: SeedHistoryOptions = {},
+): Promise<number> {
+  const now = (options.now ?? new Date()).getTime();
   const [facility] = await db.select().from(facilities).where(eq(facilities.slug, DEMO_FACILITY.slug));
   if (!facility) return 0;
-  const [any] = await db
-    .select({ id: measurements.id })
-    .from(measurements)
-    .where(eq(measurements.facilityId, facility.id))
-    .limit(1);
-  if (any) return 0;
-  const [staffRow] = await db
-    .select({ id: users.id })
-    .from(users)
-    .innerJoin(memberships, eq(memberships.userId, users.id))
-    .where(and(eq(memberships.facilityId, facility.id), eq(memberships.role, "staff")));
+  const hasChecks = async () =>
+    (
+      await db
+        .select({ id: measurements.id })
+        .from(measurements)
+        .where(eq(measurements.facilityId, facility.id))
+        .limit(1)
+    ).length > 0;
+  if (await hasChecks()) return 0;
+  const memberOf = async (role: "staff" | "engineer") =>
+    (
+      await db
+        .select({ id: users.id })
+        .from(users)
+        .innerJoin(memberships, eq(memberships.userId, users.id))
+        .where(and(eq(memberships.facilityId, facility.id), eq(memberships.role, role)))
+        .limit(1)
+    )[0];
+  const staffRow = await memberOf("staff");
   if (!staffRow) return 0;
   const staff: Actor = { userId: staffRow.id, facilityId: facility.id, role: "staff", via: "worker" };
+
+  interface Planned {
+    plan: Plan;
+    objective: Objective;
+    dateOf: (i: number) => Date;
+    checks: Array<{ index: number; stackId: string }>;
+  }
+  const planned: Planned[] = [];
   const dir = mkdtempSync(path.join(tmpdir(), "bb-demo-"));
   const rng = makeRng(2026);
-  let created = 0;
+  let rendered = 0;
   try {
+    // Phase 1: render and store every stack (no checks yet).
     for (const plan of PLANS) {
-      const [obj] = await db
+      const [objective] = await db
         .select()
         .from(objectives)
         .where(and(eq(objectives.facilityId, facility.id), eq(objectives.serialNumber, plan.serial)));
-      if (!obj) continue;
+      if (!objective) continue;
       const optics = OBJECTIVE_OPTICS[plan.serial]!;
       const n = plan.degradation.length;
-      const dateOf = (i: number) =>
-        new Date(Date.now() - (plan.lastCheckDaysAgo + (n - 1 - i) * 30) * 86_400_000);
-      if (plan.visit && obj.instrumentId) {
-        const [engineer] = await db
-          .select({ id: users.id })
-          .from(users)
-          .innerJoin(memberships, eq(memberships.userId, users.id))
-          .where(and(eq(memberships.facilityId, facility.id), eq(memberships.role, "engineer")));
-        const [visit] = await db
-          .insert(serviceVisits)
-          .values({
-            facilityId: facility.id,
-            engineerId: engineer?.id ?? null,
-            title: plan.visit.title,
-            startsAt: new Date(dateOf(plan.visit.from).getTime() - 2 * 3600_000),
-            endsAt: new Date(dateOf(plan.visit.to).getTime() + 2 * 3600_000),
-            report:
-              "As found: axial FWHM well above the limit after cleaning. Front element replaced; as left within limits (invented demo report).",
-            signedOffAt: new Date(dateOf(plan.visit.to).getTime() + 3 * 3600_000),
-          })
-          .returning();
-        await db
-          .insert(serviceVisitInstruments)
-          .values({ visitId: visit!.id, instrumentId: obj.instrumentId });
-      }
-      for (const ev of plan.events ?? []) {
-        await addLogbookEvent(db, { ...staff, role: "admin" }, obj.id, {
-          kind: ev.kind,
-          note: ev.note,
-          occurredAt: new Date(dateOf(ev.monthIndex).getTime() - 3600_000).toISOString(),
-        });
-      }
+      const dateOf = (i: number) => new Date(now - (plan.lastCheckDaysAgo + (n - 1 - i) * 30) * DAY_MS);
+      const entry: Planned = { plan, objective, dateOf, checks: [] };
       for (let i = 0; i < n; i++) {
         const d = plan.degradation[i];
         if (d == null) continue;
@@ -174,31 +207,90 @@ export async function seedDemoHistory(db: Db, storage: ObjectStorage): Promise<n
           emissionWavelengthNm: plan.emissionWavelengthNm,
           degradation: d * (1 + 0.01 * (rng() - 0.5)),
           beadCount: 10,
-          seed: 1000 + created,
+          seed: 1000 + rendered,
         });
-        const file = path.join(dir, `check-${created}.tif`);
+        rendered++;
+        const file = path.join(dir, `check-${rendered}.tif`);
         writeFileSync(file, demo.tiff);
         const stack = await registerStackFromFile(db, storage, staff, {
           filePath: file,
           fileName: `${plan.serial}-${dateOf(i).toISOString().slice(0, 10)}.tif`,
         });
-        await createMeasurement(db, staff, {
-          stackId: stack.id,
-          objectiveId: obj.id,
-          purpose: plan.purposes?.[i] ?? "routine",
-          channel: 0,
-          emissionWavelengthNm: plan.emissionWavelengthNm,
-          excitationWavelengthNm: plan.excitationWavelengthNm,
-          modality: plan.modality,
-          pinholeAu: plan.modality === "confocal" ? 1 : undefined,
-          beadDiameterNm: 100,
-          acquiredAt: dateOf(i).toISOString(),
-        });
-        created++;
+        rmSync(file, { force: true });
+        entry.checks.push({ index: i, stackId: stack.id });
       }
+      planned.push(entry);
     }
   } finally {
     rmSync(dir, { recursive: true, force: true });
+  }
+
+  // Phase 2: the visit, the logbook events and the checks, in one short pass.
+  if (await hasChecks()) return 0; // another run got here first
+  const engineer = await memberOf("engineer");
+  let created = 0;
+  for (const { plan, objective, dateOf, checks } of planned) {
+    if (plan.visit && objective.instrumentId) {
+      const [existing] = await db
+        .select({ id: serviceVisits.id })
+        .from(serviceVisits)
+        .where(and(eq(serviceVisits.facilityId, facility.id), eq(serviceVisits.title, plan.visit.title)))
+        .limit(1);
+      if (!existing) {
+        await db.transaction(async (tx) => {
+          const [visit] = await tx
+            .insert(serviceVisits)
+            .values({
+              facilityId: facility.id,
+              engineerId: engineer?.id ?? null,
+              title: plan.visit!.title,
+              startsAt: new Date(dateOf(plan.visit!.from).getTime() - 2 * HOUR_MS),
+              endsAt: new Date(dateOf(plan.visit!.to).getTime() + 2 * HOUR_MS),
+              report:
+                "As found: lateral and axial FWHM above the limits; cleaning the front lens did not help. Front element replaced; as left within limits (invented demo report).",
+              signedOffAt: new Date(dateOf(plan.visit!.to).getTime() + 3 * HOUR_MS),
+            })
+            .returning();
+          await tx
+            .insert(serviceVisitInstruments)
+            .values({ visitId: visit!.id, instrumentId: objective.instrumentId! });
+        });
+      }
+    }
+    for (const ev of plan.events ?? []) {
+      const [existing] = await db
+        .select({ id: logbookEvents.id })
+        .from(logbookEvents)
+        .where(
+          and(
+            eq(logbookEvents.objectiveId, objective.id),
+            eq(logbookEvents.kind, ev.kind),
+            eq(logbookEvents.note, ev.note),
+          ),
+        )
+        .limit(1);
+      if (existing) continue;
+      await addLogbookEvent(db, staff, objective.id, {
+        kind: ev.kind,
+        note: ev.note,
+        occurredAt: new Date(dateOf(ev.monthIndex).getTime() + ev.offsetHours * HOUR_MS).toISOString(),
+      });
+    }
+    for (const { index, stackId } of checks) {
+      await createMeasurement(db, staff, {
+        stackId,
+        objectiveId: objective.id,
+        purpose: plan.purposes?.[index] ?? "routine",
+        channel: 0,
+        emissionWavelengthNm: plan.emissionWavelengthNm,
+        excitationWavelengthNm: plan.excitationWavelengthNm,
+        modality: plan.modality,
+        pinholeAu: plan.modality === "confocal" ? 1 : undefined,
+        beadDiameterNm: 100,
+        acquiredAt: dateOf(index).toISOString(),
+      });
+      created++;
+    }
   }
   return created;
 }
