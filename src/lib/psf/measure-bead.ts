@@ -1,5 +1,5 @@
 import type { Stack } from "../tiff/stack";
-import type { FitStopReason } from "./analysis-types";
+import type { BeadResult, FitStopReason } from "./analysis-types";
 import { axialAsymmetry } from "./axial-asymmetry";
 import { FWHM_PER_SIGMA } from "./engine-version";
 import { fitGaussian1d, type Gaussian1dFit } from "./fit-gaussian-1d";
@@ -27,46 +27,30 @@ export interface MeasureBeadOptions {
   maxIterations3d: number;
 }
 
-/** Everything measured on one bead, before the accept/reject decision. Widths in µm. */
-export interface BeadMeasurement {
-  xPx: number;
-  yPx: number;
-  zPx: number;
+/** Fields of a {@link BeadResult} that `analyzeStack` adds after measuring: identity, µm positions, depth, r², inclusion. */
+type DerivedBeadField =
+  | "id"
+  | "xUm"
+  | "yUm"
+  | "zUm"
+  | "depthUm"
+  | "apparentDepthUm"
+  | "r2"
+  | "included"
+  | "rejectReason"
+  | "rejectReasons";
+
+/**
+ * Everything measured on one bead, before the accept/reject decision: the measured fields of
+ * the bead row (documented on {@link BeadResult}, widths in µm) and the flags the decision reads.
+ */
+export interface BeadMeasurement extends Omit<BeadResult, DerivedBeadField> {
   edge: boolean;
   saturated: boolean;
   /** A 1D fit failed outright (non-finite, singular, too few points, no amplitude). */
   fitFailed: boolean;
   /** A 1D σ ended at its bound. */
   widthAtBound: boolean;
-  fwhmXUm: number | null;
-  fwhmYUm: number | null;
-  fwhmZUm: number | null;
-  fwhmXUncertaintyUm: number | null;
-  fwhmYUncertaintyUm: number | null;
-  fwhmZUncertaintyUm: number | null;
-  fwhmZDirectUm: number | null;
-  fwhm3dXUm: number | null;
-  fwhm3dYUm: number | null;
-  fwhm3dZUm: number | null;
-  fwhm3dXUncertaintyUm: number | null;
-  fwhm3dYUncertaintyUm: number | null;
-  fwhm3dZUncertaintyUm: number | null;
-  rotation3dRad: number | null;
-  amplitude: number | null;
-  background: number | null;
-  snr: number | null;
-  r2X: number | null;
-  r2Y: number | null;
-  r2Z: number | null;
-  r23d: number | null;
-  axialAsymmetry: number | null;
-  axialSkewness: number | null;
-  axialEnergyRatio: number | null;
-  lateralAsymmetry: number | null;
-  driftUmPerUm: number | null;
-  peak: number;
-  integrated: number | null;
-  fitConverged: { x: boolean; y: boolean; z: boolean; xyz: boolean };
   fitReasons: {
     x: FitStopReason | null;
     y: FitStopReason | null;
