@@ -1,5 +1,5 @@
 import { checkPositive } from "./check-optics-inputs";
-import { gaussLegendre } from "./gauss-legendre";
+import { pupilAxialMoments } from "./pupil-axial-moments";
 
 /** One axial scaling factor ζ = Δz_actual/Δz_nominal with the name of its model. */
 export interface NamedScalingFactor {
@@ -79,28 +79,6 @@ export function axialScalingFactors(options: {
 
 /** RMS-optimal ζ = var(a)/cov(a, b), a = √(n_i² − s²), b = √(n_s² − s²), pupil-area weighted. */
 function rmsOptimalScaling(na: number, immersionRi: number, sampleRi: number): number {
-  const rhoMax = Math.min(1, sampleRi / na, immersionRi / na);
-  const { nodes, weights } = gaussLegendre(RMS_NODES);
-  let w = 0;
-  let sa = 0;
-  let sb = 0;
-  let saa = 0;
-  let sab = 0;
-  for (let j = 0; j < RMS_NODES; j++) {
-    const rho = (rhoMax / 2) * (nodes[j] + 1);
-    const weight = weights[j] * rho;
-    const s = na * rho;
-    const a = Math.sqrt(Math.max(0, immersionRi * immersionRi - s * s));
-    const b = Math.sqrt(Math.max(0, sampleRi * sampleRi - s * s));
-    w += weight;
-    sa += weight * a;
-    sb += weight * b;
-    saa += weight * a * a;
-    sab += weight * a * b;
-  }
-  const meanA = sa / w;
-  const meanB = sb / w;
-  const varA = saa / w - meanA * meanA;
-  const covAB = sab / w - meanA * meanB;
+  const { varA, covAB } = pupilAxialMoments(na, immersionRi, sampleRi, RMS_NODES);
   return varA / covAB;
 }

@@ -1,5 +1,5 @@
 import { checkPositive } from "./check-optics-inputs";
-import { gaussLegendre } from "./gauss-legendre";
+import { pupilAxialMoments } from "./pupil-axial-moments";
 
 /** Strehl estimates from an RMS wavefront error. */
 export interface MarechalStrehl {
@@ -72,30 +72,7 @@ export function mismatchRmsWavefront(options: {
   checkPositive("immersionRi", immersionRi);
   checkPositive("sampleRi", sampleRi);
   checkPositive("wavelengthNm", wavelengthNm);
-  const rhoMax = Math.min(1, sampleRi / na, immersionRi / na);
-  const { nodes, weights } = gaussLegendre(NODES);
-  let w = 0;
-  let sa = 0;
-  let sb = 0;
-  let saa = 0;
-  let sbb = 0;
-  let sab = 0;
-  for (let j = 0; j < NODES; j++) {
-    const rho = (rhoMax / 2) * (nodes[j] + 1);
-    const weight = weights[j] * rho;
-    const s = na * rho;
-    const a = Math.sqrt(Math.max(0, immersionRi * immersionRi - s * s));
-    const b = Math.sqrt(Math.max(0, sampleRi * sampleRi - s * s));
-    w += weight;
-    sa += weight * a;
-    sb += weight * b;
-    saa += weight * a * a;
-    sbb += weight * b * b;
-    sab += weight * a * b;
-  }
-  const varA = saa / w - (sa / w) ** 2;
-  const varB = sbb / w - (sb / w) ** 2;
-  const cov = sab / w - (sa / w) * (sb / w);
+  const { varA, varB, covAB: cov } = pupilAxialMoments(na, immersionRi, sampleRi, NODES);
   const residual = Math.max(0, varB - (cov * cov) / varA);
   const rmsNmPerUm = Math.sqrt(residual) * 1000;
   return {
