@@ -37,33 +37,77 @@ class InputFailure extends Error {
   }
 }
 
+/**
+ * Stacks up to this size leave the analysis thread running for the next job: starting a
+ * thread and loading the engine costs about a second, most of a small analysis. After a
+ * bigger stack the thread ends, so its heap goes back to the system instead of staying
+ * at the size of that stack.
+ */
+const KEEP_THREAD_MAX_BYTES = 64 * 1024 * 1024;
+
+let idleThread: Worker | null = null;
+let nextJobId = 1;
+
+function takeThread(): Worker {
+  // workerData must be an object even though jobs arrive as messages: loader hooks that a
+  // test runner passes on to threads read it.
+  const thread =
+    idleThread ?? new Worker(new URL("../analysis-thread-entry.mjs", import.meta.url), { workerData: {} });
+  idleThread = null;
+  thread.ref();
+  return thread;
+}
+
 function runInThread(
   bytes: Uint8Array,
   params: StoredParameters,
   onProgress: (stage: string, fraction: number) => void,
 ): Promise<MeasurementPipelineResult> {
-  return new Promise((resolve, reject) => {
-    const worker = new Worker(new URL("../analysis-thread-entry.mjs", import.meta.url), {
-      workerData: { bytes, params, maxVoxels: getEnv().MAX_STACK_VOXELS },
-      transferList: [bytes.buffer as ArrayBuffer],
-    });
-    let settled = false;
-    worker.on("message", (msg) => {
-      if (msg.type === "progress") onProgress(msg.stage, msg.fraction);
-      else if (msg.type === "result") {
-        settled = true;
-        resolve(msg.result);
-      } else if (msg.type === "error") {
-        settled = true;
-        reject(msg.inputError ? new InputFailure(msg.code, msg.message) : new Error(msg.message));
+  const keep = bytes.byteLength <= KEEP_THREAD_MAX_BYTES;
+  const thread = takeThread();
+  const id = nextJobId++;
+  return new Promise<MeasurementPipelineResult>((resolve, reject) => {
+    const done = (reusable: boolean) => {
+      thread.off("message", onMessage);
+      thread.off("error", onError);
+      thread.off("exit", onExit);
+      if (reusable && keep && !idleThread) {
+        thread.unref(); // an idle thread must not keep the worker process alive
+        idleThread = thread;
+      } else if (reusable) {
+        void thread.terminate();
       }
-    });
-    worker.on("error", (err) => {
-      if (!settled) reject(err);
-    });
-    worker.on("exit", (code) => {
-      if (!settled) reject(new Error(`analysis thread exited with code ${code}`));
-    });
+    };
+    const onMessage = (msg: { id: number; type: string } & Record<string, unknown>) => {
+      if (msg.id !== id) return;
+      if (msg.type === "progress") onProgress(msg.stage as string, msg.fraction as number);
+      else if (msg.type === "result") {
+        done(true);
+        resolve(msg.result as MeasurementPipelineResult);
+      } else if (msg.type === "error") {
+        done(true);
+        reject(
+          msg.inputError
+            ? new InputFailure(msg.code as string, msg.message as string)
+            : new Error(msg.message as string),
+        );
+      }
+    };
+    const onError = (err: Error) => {
+      done(false);
+      void thread.terminate();
+      reject(err);
+    };
+    const onExit = (code: number) => {
+      done(false);
+      reject(new Error(`analysis thread exited with code ${code}`));
+    };
+    thread.on("message", onMessage);
+    thread.on("error", onError);
+    thread.on("exit", onExit);
+    thread.postMessage({ id, bytes, params, maxVoxels: getEnv().MAX_STACK_VOXELS }, [
+      bytes.buffer as ArrayBuffer,
+    ]);
   });
 }
 
