@@ -48,6 +48,9 @@ const KEEP_THREAD_MAX_BYTES = 64 * 1024 * 1024;
 let idleThread: Worker | null = null;
 let nextJobId = 1;
 
+/** The measurement was cancelled while its analysis ran; the thread was stopped. */
+class Cancelled extends Error {}
+
 function takeThread(): Worker {
   // workerData must be an object even though jobs arrive as messages: loader hooks that a
   // test runner passes on to threads read it.
@@ -62,12 +65,14 @@ function runInThread(
   bytes: Uint8Array,
   params: StoredParameters,
   onProgress: (stage: string, fraction: number) => void,
+  signal: AbortSignal,
 ): Promise<MeasurementPipelineResult> {
   const keep = bytes.byteLength <= KEEP_THREAD_MAX_BYTES;
   const thread = takeThread();
   const id = nextJobId++;
   return new Promise<MeasurementPipelineResult>((resolve, reject) => {
     const done = (reusable: boolean) => {
+      signal.removeEventListener("abort", onAbort);
       thread.off("message", onMessage);
       thread.off("error", onError);
       thread.off("exit", onExit);
@@ -102,6 +107,13 @@ function runInThread(
       done(false);
       reject(new Error(`analysis thread exited with code ${code}`));
     };
+    // Cancelled mid-analysis: stop the thread rather than finish work nobody will see.
+    const onAbort = () => {
+      done(false);
+      void thread.terminate();
+      reject(new Cancelled());
+    };
+    signal.addEventListener("abort", onAbort, { once: true });
     thread.on("message", onMessage);
     thread.on("error", onError);
     thread.on("exit", onExit);
@@ -127,12 +139,24 @@ export async function analyzeMeasurement(data: unknown, attempt: { retryCount: n
       bytes.byteLength === bytes.buffer.byteLength &&
       bytes.buffer instanceof ArrayBuffer;
     const own = ownsBuffer ? bytes : bytes.slice();
-    const result = await runInThread(own, row.parameters as StoredParameters, (stage, fraction) => {
-      void reportProgress(db, row.id, STAGE_OF[stage] ?? stage, fraction).catch(() => {});
-    });
+    const cancelled = new AbortController();
+    const result = await runInThread(
+      own,
+      row.parameters as StoredParameters,
+      (stage, fraction) => {
+        // false: the row is no longer running (someone cancelled it).
+        void reportProgress(db, row.id, STAGE_OF[stage] ?? stage, fraction)
+          .then((running) => {
+            if (!running) cancelled.abort();
+          })
+          .catch(() => {});
+      },
+      cancelled.signal,
+    );
     await reportProgress(db, row.id, "saving", 0);
     saved = await saveResults(db, row, result);
   } catch (err) {
+    if (err instanceof Cancelled) return; // the row already says cancelled
     if (err instanceof InputFailure) {
       await failMeasurement(db, row.id, err.code, err.message);
       return; // bad input: do not retry
