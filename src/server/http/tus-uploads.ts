@@ -12,7 +12,7 @@ import { Server, type Upload } from "@tus/server";
 import { getEnv } from "../../env";
 import { getDb } from "../db/client";
 import { requireApiActor } from "../auth/current-actor";
-import { registerStackFromFile } from "../services/stacks";
+import { registerStackFromFile, requireUploadRight } from "../services/stacks";
 import { getStorage, uploadsDir } from "../storage/get-storage";
 import { AppError } from "./errors";
 
@@ -55,6 +55,7 @@ export function getTusServer(): Server {
     async onUploadCreate(_req, upload: Upload) {
       try {
         const actor = await requireApiActor();
+        await requireUploadRight(getDb(), actor);
         const name = String(upload.metadata?.filename ?? "stack.tif").slice(0, 255);
         // Ownership comes from the session, never from what the client sent.
         return { metadata: { filename: name, userId: actor.userId, facilityId: actor.facilityId } };

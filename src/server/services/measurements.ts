@@ -24,6 +24,7 @@ import { enqueueAnalysis } from "../queue/boss";
 import { getStackRow } from "./stacks";
 import { getObjective } from "./instruments";
 import { resolveMediumRi } from "./media";
+import { getVisitRow } from "./service-visits";
 
 /** Everything the worker needs, stored on the row (provenance and re-runs). */
 export interface StoredParameters extends MeasurementParameters {
@@ -75,6 +76,8 @@ export async function createMeasurement(db: Db, actor: Actor, input: CreateMeasu
       );
     }
   }
+  // The visit named must be one the actor can see (own facility; an engineer's own visit).
+  if (input.serviceVisitId) await getVisitRow(db, actor, input.serviceVisitId);
   if (input.channel >= stack.channels) {
     throw new AppError(
       "unprocessable",

@@ -176,7 +176,11 @@ export async function createServiceVisit(db: Db, actor: Actor, input: CreateServ
   return { ...planned.visit, engineerNotice };
 }
 
-async function getVisitRow(db: Db, actor: Actor, id: string) {
+/**
+ * One visit of the actor's facility, if the actor may see it: not for researchers, and for an
+ * engineer only their own visits. Anything else is "not found" (never "forbidden").
+ */
+export async function getVisitRow(db: Db, actor: Actor, id: string) {
   if (actor.role === "researcher") throw notFound("Service visit");
   const [visit] = await db
     .select()
@@ -317,10 +321,24 @@ export async function getServiceVisitReport(db: Db, actor: Actor, id: string) {
   };
 }
 
-/** Sign off the visit with its report; the report is kept with the visit. */
+function withinVisit(visit: { startsAt: Date; endsAt: Date }, at: Date): boolean {
+  return visit.startsAt.getTime() <= at.getTime() && at.getTime() <= visit.endsAt.getTime();
+}
+
+/**
+ * Sign off the visit with its report; the report is kept with the visit. An engineer signs off
+ * their own visit only, and only while it lasts.
+ */
 export async function signOffServiceVisit(db: Db, actor: Actor, id: string, report: string) {
   const visit = await getVisitRow(db, actor, id);
   if (actor.role !== "engineer") requirePermission(actor, "instruments.manage");
+  else if (!withinVisit(visit, new Date())) {
+    // DESIGN.md §7: an engineer's service reports are for the visit window only.
+    throw new AppError(
+      "forbidden",
+      "Engineers sign off a visit while it lasts; the facility's staff can sign it off now.",
+    );
+  }
   if (visit.signedOffAt) throw new AppError("conflict", "This visit was already signed off.");
   await db.transaction(async (tx) => {
     await tx.update(serviceVisits).set({ report, signedOffAt: new Date() }).where(eq(serviceVisits.id, id));

@@ -74,13 +74,31 @@ export async function inspectStackBytes(bytes: Uint8Array): Promise<TiffMetadata
   }
 }
 
+/**
+ * Whether the actor may upload at all: every role, an engineer only during a service visit
+ * of theirs ("assigned" in the role matrix). Checked when a tus upload starts and again when
+ * any upload is registered.
+ * @throws 403 otherwise
+ */
+export async function requireUploadRight(db: Db, actor: Actor, now = new Date()): Promise<void> {
+  if (requirePermission(actor, "stacks.upload") !== "assigned") return;
+  const assigned = await listAssignedInstrumentIds(db, {
+    facilityId: actor.facilityId,
+    engineerId: actor.userId,
+    at: now,
+  });
+  if (assigned.length === 0) {
+    throw new AppError("forbidden", "Engineers upload stacks during a service visit of theirs only.");
+  }
+}
+
 export async function registerStackFromFile(
   db: Db,
   storage: ObjectStorage,
   actor: Actor,
   input: { filePath: string; fileName: string; meta?: StackUploadMeta },
 ): Promise<StackDto> {
-  requirePermission(actor, "stacks.upload");
+  await requireUploadRight(db, actor);
   const { size } = await stat(input.filePath);
   if (size === 0) throw new AppError("unprocessable", "The file is empty.");
   if (size > getEnv().MAX_UPLOAD_BYTES) {
