@@ -337,7 +337,8 @@ async function visitAs(engineer: boolean, when: "now" | "past" = "now"): Promise
 }
 
 const today = () => new Date().toISOString().slice(0, 10);
-const tomorrow = () => new Date(Date.now() + 86_400_000).toISOString().slice(0, 10);
+// Two days ahead: still in the future if the server's clock has just passed midnight UTC.
+const future = () => new Date(Date.now() + 2 * 86_400_000).toISOString().slice(0, 10);
 
 // ---------------------------------------------------------------------------------------------
 // The routes
@@ -387,7 +388,7 @@ const ROUTES: Route[] = [
     expect: { admin: 200, staff: 200, researcher: 200, engineer: 200, "other facility": 404 } },
   // A future date is refused before the objective is looked up, so the answer says nothing about the id.
   { name: "status on a future date", method: "GET",
-    path: (i) => `/api/v1/objectives/${i.oil}/status?date=${tomorrow()}`, expect: ALL(422) },
+    path: (i) => `/api/v1/objectives/${i.oil}/status?date=${future()}`, expect: ALL(422) },
   { name: "create an objective", method: "POST", path: () => "/api/v1/objectives",
     body: () => jsonBody({ name: "10× / 0.30 air (e2e access check)", magnification: 10, na: 0.3, immersion: "air" }),
     after: (caller, r) => createdObjectives.push({ id: r.json.id as string, caller }),
