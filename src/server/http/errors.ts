@@ -38,3 +38,18 @@ export class AppError extends Error {
 export function notFound(what: string): AppError {
   return new AppError("not_found", `${what} not found.`);
 }
+
+/**
+ * PostgreSQL cannot store U+0000 in text (SQLSTATE 22021) or jsonb (22P05). Only the client can
+ * have sent it (JavaScript strings reach the driver as valid UTF-8 otherwise), so it is a 400
+ * with a plain message rather than a 500. Returns null for any other error.
+ */
+export function unstorableTextError(err: unknown): AppError | null {
+  for (let e = err, depth = 0; e && depth < 5; e = (e as { cause?: unknown }).cause, depth++) {
+    const code = (e as { code?: unknown }).code;
+    if (code === "22021" || code === "22P05") {
+      return new AppError("bad_request", "Text cannot contain the NUL character (U+0000).", { cause: err });
+    }
+  }
+  return null;
+}

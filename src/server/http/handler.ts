@@ -5,7 +5,7 @@
 import "server-only";
 import { NextResponse } from "next/server";
 import { ZodError, type z } from "zod";
-import { AppError } from "./errors";
+import { AppError, unstorableTextError } from "./errors";
 
 export function errorResponse(err: unknown): NextResponse {
   if (err instanceof AppError) {
@@ -19,6 +19,8 @@ export function errorResponse(err: unknown): NextResponse {
     const message = issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join("; ");
     return NextResponse.json({ error: { code: "bad_request", message, details: issues } }, { status: 400 });
   }
+  const unstorable = unstorableTextError(err);
+  if (unstorable) return errorResponse(unstorable);
   const dbDown = isDatabaseUnavailable(err);
   // Unknown errors: generic message out; details in the server log, but never query
   // parameters (they can hold hashes or user input).

@@ -14,12 +14,13 @@ import { getDb } from "../db/client";
 import { requireApiActor } from "../auth/current-actor";
 import { registerStackFromFile, requireUploadRight } from "../services/stacks";
 import { getStorage, uploadsDir } from "../storage/get-storage";
-import { AppError } from "./errors";
+import { AppError, unstorableTextError } from "./errors";
 
 export const TUS_PATH = "/api/v1/uploads";
 const ABANDONED_AFTER_MS = 24 * 3600 * 1000;
 
-function tusError(err: unknown): { status_code: number; body: string } {
+function tusError(thrown: unknown): { status_code: number; body: string } {
+  const err = unstorableTextError(thrown) ?? thrown;
   if (err instanceof AppError) {
     return {
       status_code: err.status,

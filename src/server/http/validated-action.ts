@@ -7,7 +7,7 @@ import "server-only";
 import { ZodError, type z } from "zod";
 import { requireApiActor } from "../auth/current-actor";
 import type { Actor } from "../auth/permissions";
-import { AppError } from "./errors";
+import { AppError, unstorableTextError } from "./errors";
 
 import type { ActionState } from "../../contracts/action-state";
 
@@ -31,6 +31,8 @@ export function validatedAction<S extends z.ZodType>(
         return { error: "Some fields need attention.", fieldErrors };
       }
       if (err instanceof AppError) return { error: err.message };
+      const unstorable = unstorableTextError(err);
+      if (unstorable) return { error: unstorable.message };
       console.error("[action] unexpected error:", err instanceof Error ? err.message : err);
       return { error: "Something went wrong on our side. Try again." };
     }

@@ -4,7 +4,7 @@ import { z } from "zod";
 import { requireApiActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { inviteUserSchema } from "@/contracts/invitations";
-import { AppError } from "@/server/http/errors";
+import { AppError, unstorableTextError } from "@/server/http/errors";
 import { formToObject, validatedAction, type ActionState } from "@/server/http/validated-action";
 import { createApiToken, revokeApiToken } from "@/server/services/api-tokens";
 import { inviteUser, revokeInvitation } from "@/server/services/invitations";
@@ -33,6 +33,8 @@ export async function createTokenAction(_prev: TokenState, form: FormData): Prom
   } catch (err) {
     if (err instanceof z.ZodError) return { error: err.issues.map((i) => i.message).join("; ") };
     if (err instanceof AppError) return { error: err.message };
+    const unstorable = unstorableTextError(err);
+    if (unstorable) return { error: unstorable.message };
     return { error: "The token could not be created. Try again." };
   }
 }

@@ -6,7 +6,7 @@ import { redirect } from "next/navigation";
 import { z } from "zod";
 import { acceptInvitationSchema } from "@/contracts/invitations";
 import { getDb } from "@/server/db/client";
-import { AppError } from "@/server/http/errors";
+import { AppError, unstorableTextError } from "@/server/http/errors";
 import { acceptInvitation } from "@/server/services/invitations";
 
 export interface AcceptState {
@@ -38,6 +38,8 @@ export async function acceptInvitationAction(_prev: AcceptState, form: FormData)
   } catch (err) {
     if (err instanceof z.ZodError) return { error: err.issues.map((i) => i.message).join(" "), name };
     if (err instanceof AppError) return { error: err.message, name };
+    const unstorable = unstorableTextError(err);
+    if (unstorable) return { error: unstorable.message, name };
     console.error("[invite] unexpected error:", err instanceof Error ? err.message : "unknown error");
     return { error: "Something went wrong on our side. Try again.", name };
   }
