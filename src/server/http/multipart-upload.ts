@@ -41,6 +41,9 @@ export async function receiveMultipartFile(
   try {
     bb = busboy({
       headers: { "content-type": type },
+      // Browsers and fetch send a non-ASCII file name as raw UTF-8 (WHATWG multipart/form-data
+      // encoding); busboy's default would read those bytes as Latin-1.
+      defParamCharset: "utf8",
       limits: { files: 1, fields: 5, fieldSize: 64 * 1024, fileSize: opts.maxBytes },
     });
   } catch {
