@@ -46,7 +46,8 @@ export default async function ForgotPasswordPage({
   searchParams: Promise<{ notice?: string }>;
 }) {
   const { notice: key } = await searchParams;
-  const notice = key ? NOTICES[key] : undefined;
+  // Own keys only: "?notice=constructor" must not reach Object.prototype.
+  const notice = key && Object.hasOwn(NOTICES, key) ? NOTICES[key] : undefined;
   return (
     <main className="flex min-h-screen items-center justify-center px-4">
       <section className="w-full max-w-md rounded-xl border border-paper-line bg-paper-card p-8 shadow-sm">

@@ -14,7 +14,8 @@ const REASONS: Record<string, string> = {
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ reason?: string }> }) {
   const { reason } = await searchParams;
-  const notice = reason ? REASONS[reason] : undefined;
+  // Own keys only: "?reason=constructor" must not reach Object.prototype (it crashed the page).
+  const notice = reason && Object.hasOwn(REASONS, reason) ? REASONS[reason] : undefined;
   return (
     <main className="flex min-h-screen items-center justify-center px-4">
       <div className="grid w-full max-w-3xl overflow-hidden rounded-xl border border-paper-line bg-paper-card shadow-sm md:grid-cols-2">

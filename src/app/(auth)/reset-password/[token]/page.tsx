@@ -58,7 +58,8 @@ export default async function ResetPasswordPage({
 }) {
   const { token } = await params;
   const { problem: key } = await searchParams;
-  const problem = key ? PROBLEMS[key] : undefined;
+  // Own keys only: "?problem=__proto__" must not reach Object.prototype (it crashed the page).
+  const problem = key && Object.hasOwn(PROBLEMS, key) ? PROBLEMS[key] : undefined;
   let email: string | null = null;
   let unusable: string | null = null;
   try {
