@@ -15,6 +15,15 @@ export const Plot = dynamic(
   { ssr: false, loading: () => <div className="h-72 animate-pulse rounded bg-paper" /> },
 );
 
+/**
+ * User text for Plotly (trace names, hover text): Plotly reads these as its own small HTML
+ * (<b>, <br>, <a href>…) and silently drops other tags, so "<script>x</script>" would show as "x".
+ * Escaped, it reads exactly as written: Plotly turns &lt; &gt; &amp; back into characters.
+ */
+export function plotText(text: string): string {
+  return text.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;");
+}
+
 export const chartFont = { family: "Inter, system-ui, sans-serif", size: 12, color: "#1f2a37" };
 
 export const baseLayout = {

@@ -1,5 +1,5 @@
 "use client";
-import { Plot, axis, baseLayout, plotConfig } from "./plot";
+import { Plot, axis, baseLayout, plotConfig, plotText } from "./plot";
 
 export interface TrendChartProps {
   title: string;
@@ -119,7 +119,7 @@ export function TrendChart({ title, points, currentEpoch, specLimit, chart, even
     showarrow: false,
     font: { size: 10, color: "#4b5a6b" },
     textangle: -30,
-    hovertext: e.note ?? undefined,
+    hovertext: e.note ? plotText(e.note) : undefined,
   }));
   return (
     <Plot

@@ -4,7 +4,7 @@ import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useEffect, useMemo, useRef } from "react";
 import { useQuery } from "@tanstack/react-query";
 import type { PlannerResponse } from "@/contracts/planner";
-import { Plot, axis, baseLayout, plotConfig } from "@/components/charts/plot";
+import { Plot, axis, baseLayout, plotConfig, plotText } from "@/components/charts/plot";
 
 const PALETTE = ["#0f766e", "#7c3aed", "#b7791f", "#b42318", "#2563eb", "#4b5563"];
 
@@ -71,7 +71,7 @@ export function PlannerView({ objectives, media }: Props) {
 
   const series = (key: "lateralFwhmUm" | "axialFwhmUm" | "peakRelative") =>
     (data?.predictions ?? []).map((p, i) => ({
-      name: p.objective.name,
+      name: plotText(p.objective.name),
       x: p.rows.map((r) => r.actualDepthUm),
       y: p.rows.map((r) => r[key]),
       mode: "lines",
@@ -303,7 +303,7 @@ export function PlannerView({ objectives, media }: Props) {
               <h2>Focal shift</h2>
               <Plot
                 data={(data.predictions ?? []).map((p, i) => ({
-                  name: p.objective.name,
+                  name: plotText(p.objective.name),
                   x: p.rows.map((r) => r.depthUm),
                   y: p.rows.map((r) => r.actualDepthUm),
                   mode: "lines",
