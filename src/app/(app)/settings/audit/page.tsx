@@ -11,7 +11,11 @@ export const metadata: Metadata = { title: "Audit log" };
 function compact(value: unknown): string {
   if (value === undefined) return "—";
   const s = JSON.stringify(value);
-  return s.length > 120 ? `${s.slice(0, 117)}…` : s;
+  if (s.length <= 120) return s;
+  // Cut between characters, never inside a surrogate pair (an emoji): a lone half is written as
+  // U+FFFD in the HTML but kept in the page data, and React's hydration then fails on the text.
+  const cut = /[\uD800-\uDBFF]/.test(s[116]!) ? 116 : 117;
+  return `${s.slice(0, cut)}…`;
 }
 
 /** `{ before, after }` details as "field: old → new" lines; anything else as compact JSON. */
