@@ -64,9 +64,10 @@ export function beadsToPublicRows(rows: BeadResult[]): PublicBead[] {
 function csvCell(v: unknown): string {
   if (v === null || v === undefined) return "";
   const s = typeof v === "number" ? (Number.isFinite(v) ? String(v) : "") : String(v);
-  // Quote cells with separators; prefix formula-looking text so spreadsheets don't execute it.
-  const safe = /^[=+\-@]/.test(s) && typeof v !== "number" ? `'${s}` : s;
-  return /[",\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
+  // Prefix formula-looking text so spreadsheets don't execute it (OWASP "CSV Injection": a cell
+  // starting with = + - @ tab or carriage return), and quote cells with separators or line breaks.
+  const safe = /^[=+\-@\t\r]/.test(s) && typeof v !== "number" ? `'${s}` : s;
+  return /[",\n\r]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
 }
 
 export function beadsToCsv(rows: PublicBead[]): string {
