@@ -256,8 +256,22 @@ function obj(v: unknown): XmlNode | null {
 function arr(v: unknown): unknown[] {
   return Array.isArray(v) ? v : v === undefined ? [] : [v];
 }
+/** The five predefined entities (XML 1.0 §4.6); with character references (§4.1), decoded by `str`. */
+const XML_ENTITIES: Record<string, string> = { lt: "<", gt: ">", amp: "&", quot: '"', apos: "'" };
+/**
+ * Entity references in an attribute value or text. The parser runs with `processEntities: false`,
+ * so that no DOCTYPE-declared entity is ever expanded; only the predefined entities and character
+ * references are decoded here (in one pass, so "&amp;lt;" stays "&lt;").
+ */
+function decodeXmlText(s: string): string {
+  return s.replace(/&(lt|gt|amp|quot|apos|#[0-9]{1,7}|#x[0-9a-fA-F]{1,6});/g, (ref, name: string) => {
+    if (name[0] !== "#") return XML_ENTITIES[name]!;
+    const cp = name[1] === "x" ? parseInt(name.slice(2), 16) : parseInt(name.slice(1), 10);
+    return cp > 0 && cp <= 0x10ffff && !(cp >= 0xd800 && cp <= 0xdfff) ? String.fromCodePoint(cp) : ref;
+  });
+}
 function str(v: unknown): string | null {
-  return typeof v === "string" && v.trim() !== "" ? v.trim() : null;
+  return typeof v === "string" && v.trim() !== "" ? decodeXmlText(v.trim()) : null;
 }
 function num(v: unknown): number | null {
   const s = str(v);
