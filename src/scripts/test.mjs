@@ -4,7 +4,7 @@
 // folder are dropped afterwards; exits non-zero on any failure.
 import { execFileSync, spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
-import { existsSync, mkdirSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import {
   ROOT,
@@ -70,6 +70,22 @@ const env = {
   E2E_SCREENSHOT_DIR: path.join(ROOT, "test-results", "screenshots"),
 };
 
+/**
+ * After the browser and API tests have signed in, failed to sign in, expired sessions and used
+ * tokens: nothing the web app or the worker printed may hold a password, the auth secret, a
+ * whole API token, or a decoded session (common practice; OWASP Logging Cheat Sheet).
+ */
+function checkNoSecretsLogged(lines, secrets) {
+  const leaks = [];
+  for (const line of lines) {
+    if (secrets.some((s) => line.includes(s))) leaks.push("a password or the auth secret");
+    if (/\bbb_[A-Za-z0-9_-]{32}\b/.test(line)) leaks.push("an API token");
+    if (/"payload"\s*:/.test(line)) leaks.push("a decoded session token");
+  }
+  if (leaks.length) throw new Error(`the server logs hold ${[...new Set(leaks)].join(", ")}`);
+  log("test", `server and worker logs: ${lines.length} lines, no secrets`);
+}
+
 const vitest = path.join(ROOT, "node_modules/vitest/vitest.mjs");
 let server;
 let worker;
@@ -100,13 +116,21 @@ try {
   buildIfStale({ ...env, NODE_ENV: "production" });
   // The browser/API tests run against a small upload limit so oversize bodies are cheap to send.
   const e2eEnv = { ...env, MAX_UPLOAD_BYTES: String(20 * 1024 * 1024) };
-  server = startChild("web", bin.node, [bin.next, "start", "-H", "127.0.0.1", "-p", String(E2E_PORT)], {
-    ...e2eEnv,
-    NODE_ENV: "production",
-  });
-  worker = startChild("worker", bin.node, [bin.tsx, "src/worker/index.ts"], e2eEnv);
+  const transcript = [];
+  server = startChild(
+    "web",
+    bin.node,
+    [bin.next, "start", "-H", "127.0.0.1", "-p", String(E2E_PORT)],
+    { ...e2eEnv, NODE_ENV: "production" },
+    transcript,
+  );
+  worker = startChild("worker", bin.node, [bin.tsx, "src/worker/index.ts"], e2eEnv, transcript);
   await waitForHttp(`${appUrl}/sign-in`);
   run("e2e", bin.node, [vitest, "run", "--project", "e2e"], e2eEnv);
+  checkNoSecretsLogged(transcript, [
+    env.AUTH_SECRET,
+    ...Object.values(JSON.parse(readFileSync(passwordsFile, "utf8"))),
+  ]);
 } catch (err) {
   failed = true;
   console.error(`[test] ${err.message}`);

@@ -105,11 +105,16 @@ function newestSourceMtime() {
 }
 
 /** Start a long-running child; returns it. Output is prefixed with the tag. */
-export function startChild(tag, cmd, args, env) {
+/** Start a long-running child whose output is prefixed with `[tag]`; `transcript`, if given, keeps every line. */
+export function startChild(tag, cmd, args, env, transcript) {
   const child = spawn(cmd, args, { cwd: ROOT, env, stdio: ["ignore", "pipe", "pipe"] });
   const prefix = (stream, out) =>
     stream.on("data", (buf) => {
-      for (const line of buf.toString().split("\n")) if (line.trim()) out.write(`[${tag}] ${line}\n`);
+      for (const line of buf.toString().split("\n")) {
+        if (!line.trim()) continue;
+        out.write(`[${tag}] ${line}\n`);
+        transcript?.push(line);
+      }
     });
   prefix(child.stdout, process.stdout);
   prefix(child.stderr, process.stderr);

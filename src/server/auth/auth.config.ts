@@ -4,7 +4,7 @@
  * the JWT session strategy in Auth.js v5, so sessions are signed, encrypted
  * cookies that expire after SESSION_HOURS.
  */
-import type { NextAuthConfig } from "next-auth";
+import { CredentialsSignin, type NextAuthConfig } from "next-auth";
 
 export const SESSION_HOURS = 8;
 
@@ -12,6 +12,16 @@ export const authConfig = {
   pages: { signIn: "/sign-in" },
   session: { strategy: "jwt", maxAge: SESSION_HOURS * 3600 },
   trustHost: true,
+  // Shared by the proxy's instance too. Auth.js's own logger prints an error's cause and
+  // details, and for an expired session those details hold the decoded token (user id,
+  // e-mail, name); failed credentials would echo what the user typed. One line each, no
+  // details: a name and a message say enough.
+  logger: {
+    error(error) {
+      if (error instanceof CredentialsSignin) return;
+      console.error("[auth]", error.name, error.message);
+    },
+  },
   providers: [],
   callbacks: {
     jwt({ token, user }) {

@@ -36,12 +36,4 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
       },
     }),
   ],
-  logger: {
-    // Auth.js logs the full error for failed credentials; that is expected noise, and
-    // it must never include what the user typed.
-    error(error) {
-      if (error instanceof CredentialsSignin) return;
-      console.error("[auth]", error.name, error.message);
-    },
-  },
 });
