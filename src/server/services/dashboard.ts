@@ -25,7 +25,17 @@ export async function getDashboard(db: Db, actor: Actor, now = new Date()) {
     listInstrumentsByFacility(db, { facilityId: actor.facilityId, onlyIds }),
   ]);
   const active = objs.filter((o) => !o.retired);
-  const trends = await getTrends(db, active, now);
+  // The page shows status, last check and its ratios only: no need for the rest of each summary.
+  // Researchers see only their own recent measurements; engineers only their instruments'.
+  const [trends, recent] = await Promise.all([
+    getTrends(db, active, now, { ratiosOnly: true }),
+    listRecentMeasurementsByFacility(db, {
+      facilityId: actor.facilityId,
+      limit: 10,
+      createdBy: actor.role === "researcher" ? actor.userId : undefined,
+      objectiveIds: onlyIds ? active.map((o) => o.id) : undefined,
+    }),
+  ]);
   const instrumentName = new Map(instruments.map((i) => [i.id, i.name]));
 
   const objectives: DashboardObjective[] = active.map((o) => {
@@ -53,12 +63,5 @@ export async function getDashboard(db: Db, actor: Actor, now = new Date()) {
   );
   const overdue = objectives.filter((o) => o.status.status === "overdue");
 
-  // Researchers see only their own measurements; engineers only their instruments'.
-  const recent = await listRecentMeasurementsByFacility(db, {
-    facilityId: actor.facilityId,
-    limit: 10,
-    createdBy: actor.role === "researcher" ? actor.userId : undefined,
-    objectiveIds: onlyIds ? active.map((o) => o.id) : undefined,
-  });
   return { objectives, dueThisWeek, overdue, recent };
 }

@@ -155,7 +155,7 @@ export function buildTrend(
       : null,
   });
   const formulas = new Set(inEpoch.map((p) => p.formulaId).filter(Boolean));
-  return {
+  const trend = {
     objectiveId: objective.id,
     points,
     events: events.map((e) => ({
@@ -167,10 +167,18 @@ export function buildTrend(
     })),
     currentEpoch,
     charts: { lateral, axial },
-    slopePerMonth: { lateral: slope("lateralRatio"), axial: slope("axialRatio") },
     status,
     mixedFormulas: formulas.size > 1,
-  };
+  } as ObjectiveTrend;
+  // Theil–Sen is O(n²) in the year's checks and only the objective page and the trend API show
+  // it; the dashboard, reminders, digests and visit reports need the status only. So the slopes
+  // are computed on first read (an enumerable getter: JSON.stringify and spreads still see them).
+  let slopes: ObjectiveTrend["slopePerMonth"] | undefined;
+  Object.defineProperty(trend, "slopePerMonth", {
+    enumerable: true,
+    get: () => (slopes ??= { lateral: slope("lateralRatio"), axial: slope("axialRatio") }),
+  });
+  return trend;
 }
 
 export async function getObjectiveTrend(
@@ -188,15 +196,20 @@ export async function getObjectiveTrend(
   return buildTrend(objective, checks, events, now);
 }
 
-/** Trends of many objectives at once (the dashboard). */
+/**
+ * Trends of many objectives at once (the dashboard, reminders). With `ratiosOnly` the points
+ * carry only the ratios (no widths, SNR or formula, so `mixedFormulas` is false): enough for
+ * the status and the last check, and much less to read for a facility's whole history.
+ */
 export async function getTrends(
   db: Db,
   objectives: Objective[],
   now = new Date(),
+  { ratiosOnly = false }: { ratiosOnly?: boolean } = {},
 ): Promise<Map<string, ObjectiveTrend>> {
   const ids = objectives.map((o) => o.id);
   const [checks, events] = await Promise.all([
-    listChecksByObjective(db, { objectiveIds: ids }),
+    listChecksByObjective(db, { objectiveIds: ids, ratiosOnly }),
     listEventsByObjective(db, { objectiveIds: ids }),
   ]);
   return new Map(

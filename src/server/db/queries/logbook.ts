@@ -1,11 +1,20 @@
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import type { Db, Tx } from "../client";
 import { logbookEvents, measurements, users } from "../schema";
 
 type Q = Db | Tx;
 
-/** Completed checks of an objective (not researchers' samples), oldest first. */
-export async function listChecksByObjective(db: Q, { objectiveIds }: { objectiveIds: string[] }) {
+/**
+ * Completed checks of an objective (not researchers' samples), oldest first. `summary` is the
+ * small generated `trend_summary` (ratios, headline, widths medians, theory, beads, verdict
+ * level, engine version), not the full ~90 kB record: trends read thousands of these. With
+ * `ratiosOnly`, `summary` holds only `ratios` and `parameters` is null — all a status needs,
+ * for the dashboard, which reads every check of the facility.
+ */
+export async function listChecksByObjective(
+  db: Q,
+  { objectiveIds, ratiosOnly = false }: { objectiveIds: string[]; ratiosOnly?: boolean },
+) {
   if (objectiveIds.length === 0) return [];
   return db
     .select({
@@ -16,8 +25,10 @@ export async function listChecksByObjective(db: Q, { objectiveIds }: { objective
       parentId: measurements.parentId,
       version: measurements.version,
       channel: measurements.channel,
-      summary: measurements.summary,
-      parameters: measurements.parameters,
+      summary: ratiosOnly
+        ? sql<unknown>`jsonb_build_object('ratios', ${measurements.trendSummary} -> 'ratios')`
+        : measurements.trendSummary,
+      parameters: ratiosOnly ? sql<unknown>`null` : measurements.parameters,
     })
     .from(measurements)
     .where(

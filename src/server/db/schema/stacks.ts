@@ -12,6 +12,7 @@ import {
   uniqueIndex,
   uuid,
 } from "drizzle-orm/pg-core";
+import { sql } from "drizzle-orm";
 import { timestamps } from "./common";
 import { measurementStatusEnum, modalityEnum, purposeEnum } from "./enums";
 import { facilities, users } from "./facilities";
@@ -51,6 +52,29 @@ export const stacks = pgTable(
   ],
 );
 
+/**
+ * The part of `summary` that logbooks, the dashboard, reminders, digests and visit reports read
+ * (services/logbook.ts `StoredSummary`, status-on-date, weekly-digest, service-visits). A full
+ * summary is ~90 kB (the averaged PSF alone ~75 kB) and lives in TOAST; trends over thousands
+ * of checks read this ~1 kB copy instead. Built only from immutable jsonb operators
+ * (jsonb_set, ->, #>, -), as a stored generated column requires, so every writer keeps it right.
+ */
+const TREND_SUMMARY_PICKS: Array<[path: string, from: string]> = [
+  ["{ratios}", "summary -> 'ratios'"],
+  ["{headline}", "summary -> 'headline'"],
+  ["{theory}", "(summary -> 'theory') - 'notes'"],
+  ["{beads}", "summary -> 'beads'"],
+  ["{effectiveRi}", "summary -> 'effectiveRi'"],
+  ["{engineVersion}", "summary -> 'engineVersion'"],
+  ["{widths,medianSnr}", "summary #> '{widths,medianSnr}'"],
+  ["{widths,medianAxialAsymmetry}", "summary #> '{widths,medianAxialAsymmetry}'"],
+  ["{verdict,level}", "summary #> '{verdict,level}'"],
+];
+const trendSummaryExpression = `case when summary is null then null else ${TREND_SUMMARY_PICKS.reduce(
+  (acc, [path, from]) => `jsonb_set(${acc}, '${path}', coalesce(${from}, 'null'::jsonb))`,
+  `'{"widths": {}, "verdict": {}}'::jsonb`,
+)} end`;
+
 /** One analysis of one stack (one channel) for one objective. */
 export const measurements = pgTable(
   "measurements",
@@ -81,6 +105,8 @@ export const measurements = pgTable(
     parentId: uuid("parent_id"),
     serviceVisitId: uuid("service_visit_id"),
     summary: jsonb("summary"),
+    /** Generated from `summary` (see TREND_SUMMARY_PICKS); never written directly. */
+    trendSummary: jsonb("trend_summary").generatedAlwaysAs(sql.raw(trendSummaryExpression)),
     engineVersion: text("engine_version"),
     formulaId: text("formula_id"),
     acquiredAt: timestamp("acquired_at", { withTimezone: true }).notNull().defaultNow(),
@@ -90,7 +116,11 @@ export const measurements = pgTable(
   },
   (t) => [
     index("measurements_facility_created_idx").on(t.facilityId, t.createdAt),
-    index("measurements_objective_acquired_idx").on(t.objectiveId, t.acquiredAt),
+    // Newest-first lists with a keyset cursor (acquired_at, created_at, id): per facility,
+    // per objective, per author (researchers see their own).
+    index("measurements_facility_acquired_idx").on(t.facilityId, t.acquiredAt, t.createdAt, t.id),
+    index("measurements_objective_acquired_idx").on(t.objectiveId, t.acquiredAt, t.createdAt, t.id),
+    index("measurements_created_by_acquired_idx").on(t.createdBy, t.acquiredAt),
     index("measurements_stack_idx").on(t.stackId),
     index("measurements_status_idx").on(t.status),
   ],
