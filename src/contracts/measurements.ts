@@ -52,6 +52,29 @@ export const rerunMeasurementSchema = z
   .strict();
 export type RerunMeasurement = z.infer<typeof rerunMeasurementSchema>;
 
+/** Most beads one JSON page of `GET /api/v1/measurements/{id}/beads` returns. */
+export const BEAD_PAGE_MAX = 5000;
+
+/**
+ * Query of `GET /api/v1/measurements/{id}/beads`: JSON comes in pages of `limit` beads (by id)
+ * after the bead id `after`, with `next` for the following page; CSV is always every bead.
+ */
+export const beadListQuerySchema = z.object({
+  format: z.enum(["json", "csv"], { message: "format must be json or csv" }).default("json"),
+  limit: z.coerce
+    .number({ message: `limit must be a whole number from 1 to ${BEAD_PAGE_MAX}` })
+    .int({ message: `limit must be a whole number from 1 to ${BEAD_PAGE_MAX}` })
+    .min(1, { message: `limit must be a whole number from 1 to ${BEAD_PAGE_MAX}` })
+    .max(BEAD_PAGE_MAX, { message: `limit must be a whole number from 1 to ${BEAD_PAGE_MAX}` })
+    .default(1000),
+  after: z.coerce
+    .number({ message: "after must be a bead id (a whole number ≥ 0)" })
+    .int({ message: "after must be a bead id (a whole number ≥ 0)" })
+    .min(0, { message: "after must be a bead id (a whole number ≥ 0)" })
+    .optional(),
+});
+export type BeadListQuery = z.infer<typeof beadListQuerySchema>;
+
 export const measurementStages = [
   "queued",
   "reading",

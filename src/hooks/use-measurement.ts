@@ -195,7 +195,19 @@ export function useMeasurement(id: string) {
 export function useBeads(id: string, enabled: boolean) {
   return useQuery({
     queryKey: measurementKeys.beads(id),
-    queryFn: () => getJson<{ beads: PublicBead[] }>(`/api/v1/measurements/${id}/beads`).then((r) => r.beads),
+    // The API pages beads by id (`next` → `after`); the charts and table need them all.
+    queryFn: async () => {
+      const beads: PublicBead[] = [];
+      let after: number | null = null;
+      do {
+        const page: { beads: PublicBead[]; next: number | null } = await getJson(
+          `/api/v1/measurements/${id}/beads?limit=5000${after === null ? "" : `&after=${after}`}`,
+        );
+        beads.push(...page.beads);
+        after = page.next;
+      } while (after !== null);
+      return beads;
+    },
     enabled,
   });
 }

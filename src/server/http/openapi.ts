@@ -9,7 +9,7 @@ import {
   patchObjectiveSchema,
 } from "../../contracts/instruments";
 import { createLogbookEventSchema } from "../../contracts/logbook";
-import { createMeasurementSchema, rerunMeasurementSchema } from "../../contracts/measurements";
+import { BEAD_PAGE_MAX, createMeasurementSchema, rerunMeasurementSchema } from "../../contracts/measurements";
 import { plannerRequestSchema } from "../../contracts/planner";
 import { createServiceVisitSchema, signOffSchema } from "../../contracts/service-visits";
 import { stackUploadMetaSchema } from "../../contracts/stacks";
@@ -185,10 +185,24 @@ export function buildOpenApiDocument(serverUrl: string) {
       },
       "/api/v1/measurements/{id}/beads": {
         get: {
-          summary: "One row per bead (JSON or CSV)",
+          summary:
+            "One row per bead. JSON comes in pages by bead id: { beads, next }, pass next as `after` for the following page (null on the last); CSV is always every bead",
           parameters: [
             ...idParam,
             { name: "format", in: "query", schema: { type: "string", enum: ["json", "csv"] } },
+            {
+              name: "limit",
+              in: "query",
+              description: "JSON only: beads per page",
+              schema: { type: "integer", minimum: 1, maximum: BEAD_PAGE_MAX, default: 1000 },
+            },
+            {
+              name: "after",
+              in: "query",
+              description:
+                "JSON only: return beads whose id is greater than this (the previous page's `next`)",
+              schema: { type: "integer", minimum: 0 },
+            },
           ],
           responses: { "200": ok("Beads"), ...errors(400, 401, 404) },
         },

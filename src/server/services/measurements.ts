@@ -3,7 +3,7 @@
  * queues the analysis), read with progress and results, cancel, re-run as a new
  * version, and the bead table.
  */
-import { and, asc, eq } from "drizzle-orm";
+import { and, asc, eq, gt } from "drizzle-orm";
 import type { Modality } from "../../lib/optics";
 import type { MeasurementParameters } from "../../lib/psf/run-measurement-pipeline";
 import type { CreateMeasurement, RerunMeasurement } from "../../contracts/measurements";
@@ -14,6 +14,7 @@ import {
   logbookEvents,
   measurements,
   objectives,
+  type BeadResult,
   type Measurement,
 } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
@@ -224,13 +225,28 @@ export async function getMeasurement(db: Db, actor: Actor, id: string) {
   };
 }
 
-export async function listBeads(db: Db, actor: Actor, id: string) {
+/**
+ * A measurement's beads by id. Without `page`, every bead (the CSV export); with it, at most
+ * `limit` beads whose id is greater than `after`, and `next` to pass as `after` for the rest.
+ */
+export async function listBeads(db: Db, actor: Actor, id: string): Promise<BeadResult[]>;
+export async function listBeads(
+  db: Db,
+  actor: Actor,
+  id: string,
+  page: { limit: number; after?: number },
+): Promise<{ beads: BeadResult[]; next: number | null }>;
+export async function listBeads(db: Db, actor: Actor, id: string, page?: { limit: number; after?: number }) {
   await getMeasurementRow(db, actor, id);
-  return db
-    .select()
-    .from(beadResults)
-    .where(eq(beadResults.measurementId, id))
-    .orderBy(asc(beadResults.beadIndex));
+  const where =
+    page?.after !== undefined
+      ? and(eq(beadResults.measurementId, id), gt(beadResults.beadIndex, page.after))
+      : eq(beadResults.measurementId, id);
+  const query = db.select().from(beadResults).where(where).orderBy(asc(beadResults.beadIndex));
+  if (!page) return query;
+  const rows = await query.limit(page.limit + 1);
+  const beads = rows.slice(0, page.limit);
+  return { beads, next: rows.length > page.limit ? beads.at(-1)!.beadIndex : null };
 }
 
 export async function cancelMeasurement(db: Db, actor: Actor, id: string) {

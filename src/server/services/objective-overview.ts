@@ -1,17 +1,43 @@
 import type { Db } from "../db/client";
-import { listRecentMeasurementsByFacility } from "../db/queries/measurements";
+import {
+  countMeasurements,
+  isMeasurementCursor,
+  listRecentMeasurementsByFacility,
+} from "../db/queries/measurements";
 import type { Actor } from "../auth/permissions";
 import { getObjective } from "./instruments";
 import { getObjectiveTrend } from "./logbook";
 
-export async function getObjectiveOverview(db: Db, actor: Actor, id: string, now = new Date()) {
+/** Measurements shown per page on the objective page. */
+export const OBJECTIVE_MEASUREMENTS_PAGE = 50;
+
+/**
+ * The objective page: the objective, its trend, and one page of its measurements, newest
+ * first. `before` is the previous page's `nextCursor`; an unknown value shows the first page.
+ */
+export async function getObjectiveOverview(
+  db: Db,
+  actor: Actor,
+  id: string,
+  now = new Date(),
+  { before }: { before?: string } = {},
+) {
   const objective = await getObjective(db, actor, id);
-  const trend = await getObjectiveTrend(db, actor, id, now);
-  const measurements = await listRecentMeasurementsByFacility(db, {
+  const filter = {
     facilityId: actor.facilityId,
-    limit: 100,
     objectiveIds: [id],
     createdBy: actor.role === "researcher" ? actor.userId : undefined,
-  });
-  return { objective, status: trend.status, trend, measurements };
+  };
+  const [trend, rows, measurementCount] = await Promise.all([
+    getObjectiveTrend(db, actor, id, now),
+    listRecentMeasurementsByFacility(db, {
+      ...filter,
+      limit: OBJECTIVE_MEASUREMENTS_PAGE + 1,
+      before: before && isMeasurementCursor(before) ? before : undefined,
+    }),
+    countMeasurements(db, filter),
+  ]);
+  const measurements = rows.slice(0, OBJECTIVE_MEASUREMENTS_PAGE);
+  const nextCursor = rows.length > OBJECTIVE_MEASUREMENTS_PAGE ? measurements.at(-1)!.cursor : null;
+  return { objective, status: trend.status, trend, measurements, measurementCount, nextCursor };
 }

@@ -1,4 +1,4 @@
-import { and, desc, eq, inArray } from "drizzle-orm";
+import { and, count, desc, eq, inArray, sql, type SQL, type SQLWrapper } from "drizzle-orm";
 import type { Db, Tx } from "../client";
 import { measurements, objectives, stacks, users } from "../schema";
 
@@ -12,7 +12,7 @@ export async function listLatestChecksByObjectives(db: Q, { objectiveIds }: { ob
       objectiveId: measurements.objectiveId,
       id: measurements.id,
       acquiredAt: measurements.acquiredAt,
-      summary: measurements.summary,
+      summary: measurements.trendSummary,
     })
     .from(measurements)
     .where(
@@ -25,16 +25,28 @@ export async function listLatestChecksByObjectives(db: Q, { objectiveIds }: { ob
     .orderBy(measurements.objectiveId, desc(measurements.acquiredAt));
 }
 
-export async function listRecentMeasurementsByFacility(
-  db: Q,
-  {
-    facilityId,
-    limit,
-    createdBy,
-    objectiveIds,
-  }: { facilityId: string; limit: number; createdBy?: string; objectiveIds?: string[] },
-) {
-  const conds = [eq(measurements.facilityId, facilityId)];
+/**
+ * Keyset cursor of a measurement list, newest first: the row's acquired_at and created_at to
+ * the microsecond (UTC) and its id. Opaque to callers; built by SQL so no precision is lost.
+ */
+const CURSOR_RE =
+  /^(\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z)_(\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z)_([0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12})$/;
+
+export function isMeasurementCursor(value: string): boolean {
+  return CURSOR_RE.test(value);
+}
+
+const utcMicros = (col: SQLWrapper) =>
+  sql`to_char(${col} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.US"Z"')`;
+
+interface ListFilter {
+  facilityId: string;
+  createdBy?: string;
+  objectiveIds?: string[];
+}
+
+function listConditions({ facilityId, createdBy, objectiveIds }: ListFilter): SQL[] {
+  const conds: SQL[] = [eq(measurements.facilityId, facilityId)];
   if (createdBy) conds.push(eq(measurements.createdBy, createdBy));
   if (objectiveIds)
     conds.push(
@@ -43,6 +55,27 @@ export async function listRecentMeasurementsByFacility(
         objectiveIds.length ? objectiveIds : ["00000000-0000-0000-0000-000000000000"],
       ),
     );
+  return conds;
+}
+
+/**
+ * One page of a facility's measurements, newest first (acquired, then created, then id), with
+ * the objective, stack file and author names. `before` is the `cursor` of the last row of the
+ * previous page (keyset pagination: a deep page costs what the first one does); an invalid
+ * cursor throws a RangeError.
+ */
+export async function listRecentMeasurementsByFacility(
+  db: Q,
+  { limit, before, ...filter }: ListFilter & { limit: number; before?: string },
+) {
+  const conds = listConditions(filter);
+  if (before) {
+    const m = CURSOR_RE.exec(before);
+    if (!m) throw new RangeError("before: not a measurement list cursor");
+    conds.push(
+      sql`(${measurements.acquiredAt}, ${measurements.createdAt}, ${measurements.id}) < (${m[1]}::timestamptz, ${m[2]}::timestamptz, ${m[3]}::uuid)`,
+    );
+  }
   return db
     .select({
       id: measurements.id,
@@ -53,13 +86,22 @@ export async function listRecentMeasurementsByFacility(
       objectiveName: objectives.name,
       fileName: stacks.fileName,
       createdByName: users.name,
-      summary: measurements.summary,
+      cursor: sql<string>`${utcMicros(measurements.acquiredAt)} || '_' || ${utcMicros(measurements.createdAt)} || '_' || ${measurements.id}::text`,
     })
     .from(measurements)
     .innerJoin(objectives, eq(objectives.id, measurements.objectiveId))
     .innerJoin(stacks, eq(stacks.id, measurements.stackId))
     .leftJoin(users, eq(users.id, measurements.createdBy))
     .where(and(...conds))
-    .orderBy(desc(measurements.acquiredAt), desc(measurements.createdAt))
+    .orderBy(desc(measurements.acquiredAt), desc(measurements.createdAt), desc(measurements.id))
     .limit(limit);
+}
+
+/** How many measurements a list with these filters holds in all. */
+export async function countMeasurements(db: Q, filter: ListFilter): Promise<number> {
+  const [row] = await db
+    .select({ n: count() })
+    .from(measurements)
+    .where(and(...listConditions(filter)));
+  return row?.n ?? 0;
 }

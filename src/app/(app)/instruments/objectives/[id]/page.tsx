@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { notFound } from "next/navigation";
 import { z } from "zod";
 import { requirePageActor } from "@/server/auth/current-actor";
@@ -16,18 +17,39 @@ import { fmtDate, fmtNum } from "@/components/format";
 
 export const metadata: Metadata = { title: "Objective" };
 
-export default async function ObjectivePage({ params }: { params: Promise<{ id: string }> }) {
+/** Events listed below the charts unless "show all" is chosen (the charts always show every event). */
+const EVENTS_SHOWN = 20;
+
+export default async function ObjectivePage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ id: string }>;
+  searchParams: Promise<{ before?: string | string[]; events?: string | string[] }>;
+}) {
   const { id } = await params;
+  const query = await searchParams;
+  const before = typeof query.before === "string" ? query.before : undefined;
+  const allEvents = query.events === "all";
+  const pageHref = (next: { before?: string; events?: boolean }, hash: string) => {
+    const sp = new URLSearchParams();
+    if (next.before) sp.set("before", next.before);
+    if (next.events) sp.set("events", "all");
+    const qs = sp.toString();
+    return `/instruments/objectives/${id}${qs ? `?${qs}` : ""}#${hash}`;
+  };
   if (!z.uuid().safeParse(id).success) notFound();
   const { actor } = await requirePageActor();
   let data;
   try {
-    data = await getObjectiveOverview(getDb(), actor, id);
+    data = await getObjectiveOverview(getDb(), actor, id, undefined, { before });
   } catch (err) {
     if (err instanceof AppError && err.code === "not_found") notFound();
     throw err;
   }
-  const { objective: o, status, measurements, trend } = data;
+  const { objective: o, status, measurements, measurementCount, nextCursor, trend } = data;
+  const events = [...trend.events].reverse();
+  const shownEvents = allEvents ? events : events.slice(0, EVENTS_SHOWN);
   const slope = trend.slopePerMonth;
   const fmtSlope = (t: typeof slope.lateral) =>
     t.slope == null
@@ -110,7 +132,7 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
           <EventForm objectiveId={o.id} canBaseline={can(actor, "baselines.manage")} />
         ) : null}
         {trend.events.length ? (
-          <table className="data-table">
+          <table className="data-table" id="events">
             <thead>
               <tr>
                 <th>When</th>
@@ -120,7 +142,7 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
               </tr>
             </thead>
             <tbody>
-              {[...trend.events].reverse().map((e) => (
+              {shownEvents.map((e) => (
                 <tr key={e.id}>
                   <td className="font-mono">{fmtDate(e.occurredAt)}</td>
                   <td>{e.kind.replace(/_/g, " ")}</td>
@@ -131,14 +153,33 @@ export default async function ObjectivePage({ params }: { params: Promise<{ id: 
             </tbody>
           </table>
         ) : null}
+        {events.length > shownEvents.length ? (
+          <p className="text-sm text-ink-soft" data-testid="events-more">
+            Showing the newest {shownEvents.length} of {events.length} events.{" "}
+            <Link href={pageHref({ before, events: true }, "events")}>Show all</Link>
+          </p>
+        ) : null}
       </section>
-      <section className="card">
-        <h2 className="mb-3">Measurements</h2>
+      <section className="card space-y-3" id="measurements">
+        <h2>Measurements</h2>
         {measurements.length === 0 ? (
           <p className="text-sm text-ink-soft">No measurements of this objective yet.</p>
         ) : (
           <MeasurementList items={measurements} show="stack" />
         )}
+        {before || nextCursor ? (
+          <nav className="flex flex-wrap items-center gap-4 text-sm" aria-label="Measurement pages">
+            <span className="text-ink-soft" data-testid="measurement-count">
+              {measurements.length} shown of {measurementCount}, newest first
+            </span>
+            {before ? <Link href={pageHref({ events: allEvents }, "measurements")}>Newest</Link> : null}
+            {nextCursor ? (
+              <Link href={pageHref({ before: nextCursor, events: allEvents }, "measurements")}>
+                Older measurements →
+              </Link>
+            ) : null}
+          </nav>
+        ) : null}
       </section>
     </div>
   );

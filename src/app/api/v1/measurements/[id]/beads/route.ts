@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { beadListQuerySchema } from "@/contracts/measurements";
 import { requireApiActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { handle, json } from "@/server/http/handler";
@@ -10,12 +11,14 @@ type Ctx = { params: Promise<{ id: string }> };
 export const GET = handle(async (req, { params }: Ctx) => {
   const actor = await requireApiActor();
   const id = z.uuid({ message: "Not a valid measurement id." }).parse((await params).id);
-  const format = z
-    .enum(["json", "csv"], { message: "format must be json or csv" })
-    .default("json")
-    .parse(new URL(req.url).searchParams.get("format") ?? undefined);
-  const rows = beadsToPublicRows(await listBeads(getDb(), actor, id));
-  if (format === "csv") {
+  const search = new URL(req.url).searchParams;
+  const query = beadListQuerySchema.parse({
+    format: search.get("format") ?? undefined,
+    limit: search.get("limit") ?? undefined,
+    after: search.get("after") ?? undefined,
+  });
+  if (query.format === "csv") {
+    const rows = beadsToPublicRows(await listBeads(getDb(), actor, id));
     return new Response(beadsToCsv(rows), {
       headers: {
         "Content-Type": "text/csv; charset=utf-8",
@@ -23,5 +26,6 @@ export const GET = handle(async (req, { params }: Ctx) => {
       },
     });
   }
-  return json({ beads: rows });
+  const page = await listBeads(getDb(), actor, id, { limit: query.limit, after: query.after });
+  return json({ beads: beadsToPublicRows(page.beads), next: page.next });
 });
