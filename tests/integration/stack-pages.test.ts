@@ -1,4 +1,4 @@
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { crc32, inflateSync } from "node:zlib";
@@ -249,8 +249,14 @@ describe("listStacksWithUsage and getStackDetail", () => {
       code: "conflict",
       status: 409,
     });
+    // Its cached thumbnails go with it (two sizes made here).
+    for (const maxSidePx of [32, 64])
+      await getStackThumbnailPng(getDb(), storage, f.actors.admin, unusedStackId, { maxSidePx });
+    const cached = () => readdirSync(thumbnailsDir()).filter((n) => n.startsWith(`${unusedStackId}-`));
+    expect(cached()).toHaveLength(2);
     await deleteStack(getDb(), storage, f.actors.admin, unusedStackId);
     const list = await listStacksWithUsage(getDb(), f.actors.admin);
     expect(list.map((s) => s.id)).not.toContain(unusedStackId);
+    expect(cached()).toEqual([]);
   });
 });

@@ -14,7 +14,10 @@ import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError } from "../http/errors";
 import { encodeGreyPng } from "../images/encode-grey-png";
 import type { ObjectStorage } from "../storage/storage";
+import { thumbnailFile } from "./stack-thumbnail-files";
 import { getStackRow, tiffErrorToAppError } from "./stacks";
+
+export { thumbnailsDir } from "./stack-thumbnail-files";
 
 export const THUMBNAIL_MIN_SIDE_PX = 16;
 export const THUMBNAIL_MAX_SIDE_PX = 1024;
@@ -50,10 +53,6 @@ async function withDecodeSlot<T>(fn: () => Promise<T>): Promise<T> {
   }
 }
 
-export function thumbnailsDir(): string {
-  return path.resolve(getEnv().DATA_DIR, "thumbnails");
-}
-
 /** The PNG bytes of a stack's maximum-intensity projection (one channel), from the cache when there. */
 export async function getStackThumbnailPng(
   db: Db,
@@ -81,7 +80,7 @@ export async function getStackThumbnailPng(
       `The thumbnail size must be a whole number of pixels from ${THUMBNAIL_MIN_SIDE_PX} to ${THUMBNAIL_MAX_SIDE_PX}.`,
     );
   }
-  const file = path.join(thumbnailsDir(), `${row.id}-${channel}-${maxSidePx}.png`);
+  const file = thumbnailFile(row.id, channel, maxSidePx);
   const cached = await readFile(file).catch(() => null);
   if (cached) return new Uint8Array(cached.buffer, cached.byteOffset, cached.byteLength);
 

@@ -22,6 +22,7 @@ import {
 import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
 import { stackKey, type ObjectStorage } from "../storage/storage";
+import { deleteStackThumbnails } from "./stack-thumbnail-files";
 
 export function toStackDto(row: Stack, duplicate?: boolean): StackDto {
   return {
@@ -241,6 +242,7 @@ export async function deleteStack(db: Db, storage: ObjectStorage, actor: Actor, 
     });
   });
   await storage.delete(row.storageKey).catch(() => {});
+  await deleteStackThumbnails(id).catch(() => {});
 }
 
 /** A row of the stack list: the stack, who uploaded it, and how many measurements use it. */
