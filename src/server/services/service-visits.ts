@@ -326,13 +326,22 @@ function withinVisit(visit: { startsAt: Date; endsAt: Date }, at: Date): boolean
 }
 
 /**
+ * Whether the actor may sign off this (visible) visit now: admins and staff at any time, its
+ * engineer while the visit lasts. The page uses it to offer the form only to them.
+ */
+export function maySignOffNow(actor: Actor, visit: { startsAt: Date; endsAt: Date }, now = new Date()) {
+  if (actor.role === "engineer") return withinVisit(visit, now);
+  return can(actor, "instruments.manage");
+}
+
+/**
  * Sign off the visit with its report; the report is kept with the visit. An engineer signs off
  * their own visit only, and only while it lasts.
  */
 export async function signOffServiceVisit(db: Db, actor: Actor, id: string, report: string) {
   const visit = await getVisitRow(db, actor, id);
   if (actor.role !== "engineer") requirePermission(actor, "instruments.manage");
-  else if (!withinVisit(visit, new Date())) {
+  else if (!maySignOffNow(actor, visit)) {
     // DESIGN.md §7: an engineer's service reports are for the visit window only.
     throw new AppError(
       "forbidden",

@@ -5,7 +5,7 @@ import { z } from "zod";
 import { requirePageActor } from "@/server/auth/current-actor";
 import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
-import { getServiceVisitReport } from "@/server/services/service-visits";
+import { getServiceVisitReport, maySignOffNow } from "@/server/services/service-visits";
 import { can } from "@/server/auth/permissions";
 import { SERVICE_VISIT_FOOTNOTE } from "@/server/reports/service-visit-footnote";
 import { fmtDate, fmtNum } from "@/components/format";
@@ -115,8 +115,14 @@ export default async function ServiceVisitPage({ params }: { params: Promise<{ i
         <h2 className="mb-2">Report</h2>
         {visit.signedOffAt ? (
           <pre className="whitespace-pre-wrap font-sans text-sm">{visit.report}</pre>
-        ) : (
+        ) : maySignOffNow(actor, visit) ? (
           <SignOffForm visitId={visit.id} />
+        ) : (
+          <p className="text-sm text-ink-soft" data-testid="sign-off-unavailable">
+            {actor.role === "engineer"
+              ? `Not signed off yet. Engineers sign off a visit while it lasts (${fmtDate(visit.startsAt)} – ${fmtDate(visit.endsAt)}); the facility's staff can sign it off at any time.`
+              : "Not signed off yet. The facility's staff sign off the visit with its report."}
+          </p>
         )}
       </section>
       <p className="text-xs text-ink-faint">{SERVICE_VISIT_FOOTNOTE}</p>
