@@ -1,6 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/server/db/client";
-import { AppError } from "@/server/http/errors";
 import type { Role } from "@/server/auth/permissions";
 import {
   createInstrument,
@@ -14,7 +13,7 @@ import {
 import { listPeople } from "@/server/services/people";
 import { listServiceVisits } from "@/server/services/service-visits";
 import { getDashboard } from "@/server/services/dashboard";
-import { makeFacility, type TestFacility } from "./helpers";
+import { makeFacility, outcome, type TestFacility } from "./helpers";
 
 let a: TestFacility;
 let b: TestFacility;
@@ -26,16 +25,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await closeDb();
 });
-
-async function outcome(fn: () => Promise<unknown>): Promise<string> {
-  try {
-    await fn();
-    return "ok";
-  } catch (err) {
-    if (err instanceof AppError) return err.code;
-    throw err;
-  }
-}
 
 // Source: DESIGN.md §7 role matrix (our product's own specification), one row per cell.
 const matrix: Array<{

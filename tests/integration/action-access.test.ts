@@ -15,7 +15,6 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, isNull } from "drizzle-orm";
 import { closeDb, getDb } from "@/server/db/client";
 import { apiTokens, invitations, memberships, serviceVisits } from "@/server/db/schema";
-import { AppError } from "@/server/http/errors";
 import type { Role } from "@/server/auth/permissions";
 import { actorForToken, actorForUser } from "@/server/services/actor";
 import { createApiToken, revokeApiToken } from "@/server/services/api-tokens";
@@ -26,7 +25,7 @@ import { createMeasurement } from "@/server/services/measurements";
 import { changeRole } from "@/server/services/people";
 import { createServiceVisit, signOffServiceVisit } from "@/server/services/service-visits";
 import { requireUploadRight } from "@/server/services/stacks";
-import { makeFacility, registerTinyStack, type TestFacility } from "./helpers";
+import { makeFacility, outcome, registerTinyStack, type TestFacility } from "./helpers";
 
 let a: TestFacility;
 let b: TestFacility;
@@ -39,16 +38,6 @@ beforeAll(async () => {
 afterAll(async () => {
   await closeDb();
 });
-
-async function outcome(fn: () => Promise<unknown>): Promise<string> {
-  try {
-    await fn();
-    return "ok";
-  } catch (err) {
-    if (err instanceof AppError) return err.code;
-    throw err;
-  }
-}
 
 type Caller = Role | "other facility";
 const CALLERS: Caller[] = ["admin", "staff", "researcher", "engineer", "other facility"];

@@ -7,6 +7,7 @@ import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { getDb } from "@/server/db/client";
+import { AppError } from "@/server/http/errors";
 import { getStorage } from "@/server/storage/get-storage";
 import { registerStackFromFile } from "@/server/services/stacks";
 import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
@@ -154,4 +155,15 @@ export async function insertFinishedCheck(input: {
       },
       acquiredAt: new Date(Date.now() - input.daysAgo * DAY_MS),
     });
+}
+
+/** "ok", or the AppError code a service call refused with (anything else is re-thrown). */
+export async function outcome(fn: () => Promise<unknown>): Promise<string> {
+  try {
+    await fn();
+    return "ok";
+  } catch (err) {
+    if (err instanceof AppError) return err.code;
+    throw err;
+  }
 }

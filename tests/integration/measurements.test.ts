@@ -15,9 +15,8 @@ import {
   rerunMeasurement,
 } from "@/server/services/measurements";
 import { analyzeMeasurement } from "@/worker/handlers/analyze-measurement";
-import { AppError } from "@/server/http/errors";
 import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
-import { makeFacility, type TestFacility } from "./helpers";
+import { makeFacility, outcome, type TestFacility } from "./helpers";
 
 let f: TestFacility;
 let dir: string;
@@ -147,16 +146,6 @@ describe("a measurement from queue to result", () => {
 });
 
 describe("who may start which measurement", () => {
-  const outcome = async (fn: () => Promise<unknown>) => {
-    try {
-      await fn();
-      return "ok";
-    } catch (err) {
-      if (err instanceof AppError) return err.code;
-      throw err;
-    }
-  };
-
   it("a researcher cannot run a routine check, nor see someone else's stack", async () => {
     expect(
       await outcome(() =>
