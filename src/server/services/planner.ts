@@ -103,7 +103,7 @@ export async function runPlanner(db: Db, actor: Actor, req: PlannerRequest): Pro
     })),
     notes: [
       "Scalar Gibson–Lanni model (Gibson & Lanni 1991) at the emission wavelength; Fresnel losses and polarisation are ignored.",
-      "Depths are nominal focus travel below the coverslip; actualDepthUm converts them with the model's focal shift.",
+      "The deepest plane is nominal focus travel below the coverslip; widths and brightness are plotted against the actual depth in the sample, which the model's focal shift gives (the API returns both).",
       req.modality === "widefield"
         ? "Widths are widefield widths."
         : `Widths are the ${req.modality} theoretical FWHM scaled by the model's relative broadening with depth.`,
