@@ -26,7 +26,8 @@ export interface FieldDependenceOptions {
  * Notes: field radius R = half-diagonal; central = r ≤ centralFraction·R. Best focus = each
  * bead's apparent axial centre zUm (nominal), for beads within the coverslip layer (beads at
  * different depths would otherwise read as curvature). Plane z = c0 + c1x + c2y; quadratic adds
- * c3x² + c4xy + c5y² (needs ≥ 6 beads; plane ≥ 3). Least squares by normal equations.
+ * c3x² + c4xy + c5y². Reported only with ≥ 3 beads per coefficient (plane 9, quadratic 18); otherwise
+ * the surface is null with its bead count. Least squares by normal equations.
  * Planarity = max − min (and RMS about the mean) of the fitted surface on a 21×21 grid over the
  * field rectangle.
  * References: QC-PRACTICE.md §4.2 (best-focus surface, tilt, curvature, planarity; central vs
@@ -75,9 +76,31 @@ export function fieldDependence(
       used.map((b) => b.lateralAsymmetry ?? Number.NaN),
     ),
     focusLayerThicknessUm,
-    plane: fitSurface(px, py, pz, false, cxu, cyu),
-    quadratic: fitSurface(px, py, pz, true, cxu, cyu),
+    plane: supported(px, py, pz, false, cxu, cyu),
+    quadratic: supported(px, py, pz, true, cxu, cyu),
   };
+}
+
+/**
+ * Beads needed per surface coefficient before a fitted surface is reported. Planarity is the
+ * surface's peak-to-valley over the whole field, so a surface fitted to a handful of beads
+ * extrapolates their depth scatter into the corners: 10 beads in a 1.4 µm layer gave a
+ * "curved" planarity of 14 µm. Three per coefficient (9 for the plane, 18 for the quadratic)
+ * is our rule of thumb (common practice for least squares: several points per parameter).
+ */
+const BEADS_PER_COEFFICIENT = 3;
+
+function supported(
+  x: number[],
+  y: number[],
+  z: number[],
+  quadratic: boolean,
+  halfW: number,
+  halfH: number,
+): FocusSurface {
+  if (x.length < BEADS_PER_COEFFICIENT * (quadratic ? 6 : 3))
+    return fitSurface([], [], [], quadratic, halfW, halfH, x.length);
+  return fitSurface(x, y, z, quadratic, halfW, halfH);
 }
 
 function regionStats(b: readonly BeadResult[]): RegionStatistics {
@@ -102,11 +125,13 @@ export function fitSurface(
   quadratic: boolean,
   halfW: number,
   halfH: number,
+  /** The bead count to report when no points are passed (too few to fit). */
+  reportedN = x.length,
 ): FocusSurface {
   const n = x.length;
   const p = quadratic ? 6 : 3;
   const empty: FocusSurface = {
-    n,
+    n: reportedN,
     coefficients: null,
     tiltUmPerUm: null,
     planarityPeakToValleyUm: null,

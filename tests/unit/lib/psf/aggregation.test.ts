@@ -163,6 +163,37 @@ describe("fieldDependence / fitSurface", () => {
   });
 });
 
+describe("fieldDependence with few beads in the focus layer", () => {
+  it("reports no curved surface from fewer than 18 beads, and no plane from fewer than 9", () => {
+    // A flat field whose beads scatter ±0.7 µm in z (a 1.4 µm layer): with 12 beads a quadratic would
+    // extrapolate the scatter into the corners, so it is withheld; the plane (≥ 9) is still fitted.
+    const rng = makeRng(4);
+    const beads = (n: number) =>
+      Array.from({ length: n }, (_, i) =>
+        bead({
+          id: i + 1,
+          xUm: rng() * 40,
+          yUm: rng() * 40,
+          zUm: 5 + 1.4 * (rng() - 0.5),
+          apparentDepthUm: 0.5,
+        }),
+      );
+    const twelve = fieldDependence(beads(12), {
+      fieldWidthUm: 40,
+      fieldHeightUm: 40,
+      focusLayerThicknessUm: 1.4,
+    });
+    expect(twelve.quadratic).toMatchObject({ n: 12, coefficients: null, planarityPeakToValleyUm: null });
+    expect(twelve.plane.planarityPeakToValleyUm).not.toBeNull();
+    const eight = fieldDependence(beads(8), {
+      fieldWidthUm: 40,
+      fieldHeightUm: 40,
+      focusLayerThicknessUm: 1.4,
+    });
+    expect(eight.plane).toMatchObject({ n: 8, coefficients: null, tiltUmPerUm: null });
+  });
+});
+
 describe("coregisterChannels", () => {
   it("matches beads and reports lateral/axial shifts against the resolution", () => {
     const ref = Array.from({ length: 10 }, (_, i) =>

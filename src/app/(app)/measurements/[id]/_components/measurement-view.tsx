@@ -38,6 +38,12 @@ function fmt(x: number | null | undefined, d = 3) {
   return x == null || !Number.isFinite(x) ? "—" : x.toFixed(d);
 }
 
+/** A focus surface's peak-to-valley, or why there is none (too few beads near the coverslip). */
+function surfaceFigure(surface: { n: number; planarityPeakToValleyUm: number | null }, needed: number) {
+  if (surface.planarityPeakToValleyUm != null) return `${fmt(surface.planarityPeakToValleyUm)} µm`;
+  return surface.n < needed ? `— (${surface.n} of ${needed} beads near the coverslip)` : "—";
+}
+
 export function MeasurementView({ id, canBaseline }: { id: string; canBaseline: boolean }) {
   const { data: m, error, isLoading } = useMeasurement(id);
   const done = m?.status === "done";
@@ -372,9 +378,9 @@ function FieldCard({ field }: { field: NonNullable<MeasurementSummary["field"]> 
             {field.plane.tiltUmPerUm != null ? `${(field.plane.tiltUmPerUm * 1000).toFixed(1)} nm/µm` : "—"}
           </dd>
           <dt className="text-ink-soft">Planarity (peak–valley, plane)</dt>
-          <dd className="font-mono">{fmt(field.plane.planarityPeakToValleyUm)} µm</dd>
+          <dd className="font-mono">{surfaceFigure(field.plane, 9)}</dd>
           <dt className="text-ink-soft">Planarity (peak–valley, curved)</dt>
-          <dd className="font-mono">{fmt(field.quadratic.planarityPeakToValleyUm)} µm</dd>
+          <dd className="font-mono">{surfaceFigure(field.quadratic, 18)}</dd>
           <dt className="text-ink-soft">Lateral FWHM vs radius</dt>
           <dd className="font-mono">
             {field.fwhmXVsRadius.slope != null
