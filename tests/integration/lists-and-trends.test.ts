@@ -157,7 +157,17 @@ describe("trend summary", () => {
       .where(eq(measurements.id, beadMeasurementId));
     const t = row!.t as Record<string, unknown>;
     expect(Object.keys(t).sort()).toEqual(
-      ["beads", "effectiveRi", "engineVersion", "headline", "ratios", "theory", "verdict", "widths"].sort(),
+      [
+        "beads",
+        "effectiveRi",
+        "engineVersion",
+        "headline",
+        "ratios",
+        "shape",
+        "theory",
+        "verdict",
+        "widths",
+      ].sort(),
     );
     expect(t.widths).toEqual({ medianSnr: expect.any(Number), medianAxialAsymmetry: 0.01 });
     expect(t.verdict).toEqual({ level: "pass" });
@@ -184,6 +194,52 @@ describe("trend summary", () => {
       .where(eq(measurements.id, m!.id))
       .returning();
     expect((done!.trendSummary as { ratios: unknown }).ratios).toEqual({ lateral: 1.3, axial: 1.4 });
+  });
+
+  it("carries the shape and field figures, judged against the epoch's baseline", async () => {
+    // Invented checks on a lens of its own: lateral asymmetry steady near 0.95, then 0.70 (an
+    // elongated PSF, e.g. a decentred element); planarity steady near 0.5 µm.
+    const lar = [0.95, 0.97, 0.93, 0.96, 0.95, 0.7];
+    const planarity = [0.5, 0.55, 0.48, 0.52, 0.5, 0.53];
+    const g = await makeFacility("shape-trend");
+    const gStack = await registerTinyStack(g.actors.staff);
+    const ids: string[] = [];
+    for (const [i, a] of lar.entries()) {
+      const [row] = await getDb()
+        .insert(measurements)
+        .values({
+          facilityId: g.facilityId,
+          stackId: gStack,
+          objectiveId: g.objectiveIds[0],
+          purpose: "routine",
+          status: "done",
+          modality: "widefield",
+          parameters: {},
+          summary: {
+            ratios: { lateral: 1.1, axial: 1.2 },
+            field: {
+              full: { medianLateralAsymmetry: a },
+              plane: { planarityPeakToValleyUm: planarity[i], tiltUmPerUm: 0.002 },
+            },
+          },
+          acquiredAt: new Date(Date.now() - ((lar.length - 1 - i) * 30 + 1) * 86_400_000),
+        })
+        .returning({ id: measurements.id, t: measurements.trendSummary });
+      expect(row!.t).toMatchObject({
+        shape: { lateralAsymmetry: a, planarityUm: planarity[i], tiltUmPerUm: 0.002 },
+      });
+      ids.push(row!.id);
+    }
+    const trend = await getObjectiveTrend(getDb(), g.actors.staff, g.objectiveIds[0]);
+    expect(trend.points.map((p) => p.lateralAsymmetry)).toEqual(lar);
+    // Source: NIST/SEMATECH §6.3.2.2 individuals chart over the first 5 (the baseline block):
+    // x̄ = 0.952, MR̄ = 0.025, lower limit x̄ − 3·MR̄/1.128.
+    expect(trend.shape.lateralAsymmetry.centre).toBeCloseTo(0.952, 10);
+    expect(trend.shape.lateralAsymmetry.lower3).toBeCloseTo(0.952 - (3 * 0.025) / 1.128, 10);
+    expect(trend.shape.lateralAsymmetry.beyond).toEqual([ids[5]]);
+    expect(trend.shape.planarityUm.beyond).toEqual([]);
+    // Advisory: the ratios are steady, so the status stays in spec.
+    expect(trend.status.status).toBe("in spec");
   });
 
   it("feeds the trend points and the dashboard", async () => {

@@ -3,6 +3,7 @@ export type { ObjectiveStatus, ObjectiveStatusInput, ObjectiveStatusResult } fro
 export { measurementVerdict } from "./measurement-verdict";
 export type { MeasurementVerdict, MeasurementVerdictInput, VerdictLevel } from "./measurement-verdict";
 export { computeControlChart, theilSenSlope, D2_N2 } from "./control-chart";
+export { baselineBand, type BaselineBand } from "./baseline-band";
 export type {
   ControlChart,
   ControlChartOptions,

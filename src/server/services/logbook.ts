@@ -4,9 +4,11 @@
  * that follows from all of it.
  */
 import {
+  baselineBand,
   computeControlChart,
   computeObjectiveStatus,
   theilSenSlope,
+  type BaselineBand,
   type ControlChart,
   type ObjectiveStatusResult,
 } from "../../lib/qc";
@@ -32,6 +34,10 @@ export interface TrendPoint {
   effectiveRi: number | null;
   beadsUsed: number | null;
   formulaId: string | null;
+  /** Median min/max lateral FWHM over the field (1 = round). */
+  lateralAsymmetry: number | null;
+  /** Peak-to-valley of the best-focus plane over the field, µm; null with too few beads. */
+  planarityUm: number | null;
 }
 
 interface StoredSummary {
@@ -41,6 +47,7 @@ interface StoredSummary {
   effectiveRi?: { sampleRi?: number | null };
   beads?: { used?: number };
   theory?: { formulaId?: string; formulaVersion?: string };
+  shape?: { lateralAsymmetry?: number | null; planarityUm?: number | null };
 }
 
 type Check = Awaited<ReturnType<typeof listChecksByObjective>>[number];
@@ -87,6 +94,8 @@ function toPoints(checks: Check[], events: Event[]): TrendPoint[] {
       effectiveRi: s.effectiveRi?.sampleRi ?? null,
       beadsUsed: s.beads?.used ?? null,
       formulaId: s.theory ? `${s.theory.formulaId}@${s.theory.formulaVersion}` : null,
+      lateralAsymmetry: s.shape?.lateralAsymmetry ?? null,
+      planarityUm: s.shape?.planarityUm ?? null,
     };
   });
 }
@@ -97,6 +106,11 @@ export interface ObjectiveTrend {
   events: Array<{ id: string; kind: string; note: string | null; occurredAt: string; by: string | null }>;
   currentEpoch: number;
   charts: { lateral: ControlChart; axial: ControlChart };
+  /**
+   * Figures with no universal limit, against this epoch's baseline (advisory: they do not
+   * change the status). Lateral asymmetry is worse downwards, planarity upwards.
+   */
+  shape: { lateralAsymmetry: BaselineBand; planarityUm: BaselineBand };
   /** Rate of change of the ratios over the last 12 months (per 30 days), Theil–Sen with a 95 % interval. */
   slopePerMonth: { lateral: ReturnType<typeof theilSenSlope>; axial: ReturnType<typeof theilSenSlope> };
   status: ObjectiveStatusResult;
@@ -115,7 +129,7 @@ export function buildTrend(
   const points = toPoints(latestVersions(checks), events);
   const currentEpoch = points.length ? points[points.length - 1]!.epoch : 0;
   const inEpoch = points.filter((p) => p.epoch === currentEpoch);
-  const series = (k: "lateralRatio" | "axialRatio") =>
+  const series = (k: "lateralRatio" | "axialRatio" | "lateralAsymmetry" | "planarityUm") =>
     inEpoch.filter((p) => p[k] != null).map((p) => ({ id: p.measurementId, value: p[k]! }));
   // Phase I / Phase II: the epoch's first checks (a baseline block of at least 5,
   // growing to 20 as history accumulates) set the limits that later checks are
@@ -125,6 +139,14 @@ export function buildTrend(
   const ax = series("axialRatio");
   const lateral = computeControlChart(lat, { baselineCount: baselineCount(lat.length) });
   const axial = computeControlChart(ax, { baselineCount: baselineCount(ax.length) });
+  const band = (k: "lateralAsymmetry" | "planarityUm", worse: "up" | "down") => {
+    const pts = series(k);
+    return baselineBand(pts, worse, baselineCount(pts.length));
+  };
+  const shape = {
+    lateralAsymmetry: band("lateralAsymmetry", "down"),
+    planarityUm: band("planarityUm", "up"),
+  };
 
   const yearAgo = now.getTime() - 12 * MONTH_MS;
   const recent = points.filter((p) => new Date(p.acquiredAt).getTime() >= yearAgo);
@@ -167,6 +189,7 @@ export function buildTrend(
     })),
     currentEpoch,
     charts: { lateral, axial },
+    shape,
     status,
     mixedFormulas: formulas.size > 1,
   } as ObjectiveTrend;

@@ -69,10 +69,14 @@ const TREND_SUMMARY_PICKS: Array<[path: string, from: string]> = [
   ["{widths,medianSnr}", "summary #> '{widths,medianSnr}'"],
   ["{widths,medianAxialAsymmetry}", "summary #> '{widths,medianAxialAsymmetry}'"],
   ["{verdict,level}", "summary #> '{verdict,level}'"],
+  // Shape and field figures judged against the lens's own baseline (QC-PRACTICE.md §2).
+  ["{shape,lateralAsymmetry}", "summary #> '{field,full,medianLateralAsymmetry}'"],
+  ["{shape,planarityUm}", "summary #> '{field,plane,planarityPeakToValleyUm}'"],
+  ["{shape,tiltUmPerUm}", "summary #> '{field,plane,tiltUmPerUm}'"],
 ];
 const trendSummaryExpression = `case when summary is null then null else ${TREND_SUMMARY_PICKS.reduce(
   (acc, [path, from]) => `jsonb_set(${acc}, '${path}', coalesce(${from}, 'null'::jsonb))`,
-  `'{"widths": {}, "verdict": {}}'::jsonb`,
+  `'{"widths": {}, "verdict": {}, "shape": {}}'::jsonb`,
 )} end`;
 
 /** One analysis of one stack (one channel) for one objective. */

@@ -123,6 +123,7 @@ export default async function ObjectivePage({
               points: trend.points,
               currentEpoch: trend.currentEpoch,
               charts: trend.charts,
+              shape: trend.shape,
               events: trend.events,
             }}
             limits={{ lateral: o.lateralRatioLimit, axial: o.axialRatioLimit }}
