@@ -228,7 +228,6 @@ function Results({
             <li key={e}>{e}</li>
           ))}
           {s.effectiveRi.sampleRi != null ? <li>{s.effectiveRi.message}</li> : null}
-          {s.sampling.verdict !== "ok" ? <li>Sampling: {s.sampling.message}</li> : null}
         </ul>
       </section>
 
