@@ -75,6 +75,36 @@ export const beadListQuerySchema = z.object({
 });
 export type BeadListQuery = z.infer<typeof beadListQuerySchema>;
 
+export const measurementStatusSchema = z.enum(["queued", "running", "done", "failed", "cancelled"]);
+export type MeasurementStatus = z.infer<typeof measurementStatusSchema>;
+
+/** Most measurements one page of `GET /api/v1/measurements` returns. */
+export const MEASUREMENT_PAGE_MAX = 200;
+const limitMessage = `limit must be a whole number from 1 to ${MEASUREMENT_PAGE_MAX}`;
+
+/**
+ * Query of `GET /api/v1/measurements`: the measurements the caller may see, newest first
+ * (acquired, then created), `limit` per page. `before` is the previous page's `next`, passed on
+ * unchanged (an opaque cursor; the service rejects anything this list did not give out).
+ */
+export const measurementListQuerySchema = z.object({
+  objectiveId: z.uuid({ message: "objectiveId must be an objective id (a UUID)" }).optional(),
+  purpose: purposeSchema.optional(),
+  status: measurementStatusSchema.optional(),
+  limit: z.coerce
+    .number({ message: limitMessage })
+    .int({ message: limitMessage })
+    .min(1, { message: limitMessage })
+    .max(MEASUREMENT_PAGE_MAX, { message: limitMessage })
+    .default(50),
+  before: z
+    .string()
+    .min(1, { message: "before must be the `next` value of the previous page" })
+    .max(200, { message: "before must be the `next` value of the previous page" })
+    .optional(),
+});
+export type MeasurementListQuery = z.infer<typeof measurementListQuerySchema>;
+
 export const measurementStages = [
   "queued",
   "reading",

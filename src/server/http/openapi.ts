@@ -9,7 +9,14 @@ import {
   patchObjectiveSchema,
 } from "../../contracts/instruments";
 import { createLogbookEventSchema } from "../../contracts/logbook";
-import { BEAD_PAGE_MAX, createMeasurementSchema, rerunMeasurementSchema } from "../../contracts/measurements";
+import {
+  BEAD_PAGE_MAX,
+  MEASUREMENT_PAGE_MAX,
+  createMeasurementSchema,
+  measurementStatusSchema,
+  purposeSchema,
+  rerunMeasurementSchema,
+} from "../../contracts/measurements";
 import { plannerRequestSchema } from "../../contracts/planner";
 import { createServiceVisitSchema, signOffSchema } from "../../contracts/service-visits";
 import { stackUploadMetaSchema } from "../../contracts/stacks";
@@ -170,6 +177,32 @@ export function buildOpenApiDocument(serverUrl: string) {
         },
       },
       "/api/v1/measurements": {
+        get: {
+          summary:
+            "The measurements you may see, newest first (acquired, then created), in pages: { measurements, next }; pass next as `before` for the following page (null on the last). Each row has ids, names, purpose, status, times, version, and for finished ones the headline measured/theory ratios and the verdict level. Researchers see other people's sample measurements nowhere; engineers only their current visit's instruments",
+          parameters: [
+            { name: "objectiveId", in: "query", schema: { type: "string", format: "uuid" } },
+            { name: "purpose", in: "query", schema: { type: "string", enum: purposeSchema.options } },
+            {
+              name: "status",
+              in: "query",
+              schema: { type: "string", enum: measurementStatusSchema.options },
+            },
+            {
+              name: "limit",
+              in: "query",
+              description: "Measurements per page",
+              schema: { type: "integer", minimum: 1, maximum: MEASUREMENT_PAGE_MAX, default: 50 },
+            },
+            {
+              name: "before",
+              in: "query",
+              description: "The previous page's `next`, unchanged (an opaque cursor); anything else is a 400",
+              schema: { type: "string" },
+            },
+          ],
+          responses: { "200": ok("{ measurements, next }"), ...errors(400, 401) },
+        },
         post: {
           summary: "Start a measurement",
           requestBody: json(createMeasurementSchema),

@@ -6,7 +6,8 @@
 import { and, asc, eq, gt } from "drizzle-orm";
 import type { Modality } from "../../lib/optics";
 import type { MeasurementParameters } from "../../lib/psf/run-measurement-pipeline";
-import type { CreateMeasurement, RerunMeasurement } from "../../contracts/measurements";
+import type { VerdictLevel } from "../../lib/qc";
+import type { CreateMeasurement, MeasurementListQuery, RerunMeasurement } from "../../contracts/measurements";
 import type { Db } from "../db/client";
 import {
   beadResults,
@@ -18,6 +19,7 @@ import {
   type Measurement,
 } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
+import { isMeasurementCursor, listMeasurementPage } from "../db/queries/measurements";
 import { listAssignedInstrumentIds } from "../db/queries/service-visits";
 import { requirePermission, type Actor, type Permission } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
@@ -182,6 +184,7 @@ async function queueOrFail(db: Db, id: string) {
   }
 }
 
+/** One measurement the actor may see, else 404. `listMeasurements` filters the same way: keep them in step. */
 export async function getMeasurementRow(db: Db, actor: Actor, id: string): Promise<Measurement> {
   const [row] = await db
     .select()
@@ -222,6 +225,66 @@ export async function getMeasurement(db: Db, actor: Actor, id: string) {
     engineVersion: row.engineVersion,
     formulaId: row.formulaId,
     summary: row.status === "done" ? row.summary : null,
+  };
+}
+
+/**
+ * One page of the measurements the actor may see, newest first (`GET /api/v1/measurements`).
+ * Visibility is `getMeasurementRow`'s, as filters in SQL: the actor's facility only; a
+ * researcher sees every non-sample measurement and their own sample ones; an engineer only
+ * measurements of objectives on the instruments of their current visit. An `objectiveId` the
+ * actor cannot see simply matches nothing, so the answer never tells whether it exists.
+ * `next` is the cursor to pass as `before` for the following page, null on the last.
+ */
+export async function listMeasurements(db: Db, actor: Actor, query: MeasurementListQuery) {
+  requirePermission(actor, "logbooks.read");
+  if (query.before !== undefined && !isMeasurementCursor(query.before)) {
+    throw new AppError(
+      "bad_request",
+      "before: not a cursor of this list. Pass the `next` value of the previous page unchanged, or leave it out for the first page.",
+    );
+  }
+  const instrumentIds =
+    actor.role === "engineer"
+      ? await listAssignedInstrumentIds(db, {
+          facilityId: actor.facilityId,
+          engineerId: actor.userId,
+          at: new Date(),
+        })
+      : undefined;
+  const rows = await listMeasurementPage(db, {
+    facilityId: actor.facilityId,
+    objectiveIds: query.objectiveId ? [query.objectiveId] : undefined,
+    instrumentIds,
+    samplesOf: actor.role === "researcher" ? actor.userId : undefined,
+    purpose: query.purpose,
+    status: query.status,
+    limit: query.limit + 1,
+    before: query.before,
+  });
+  const page = rows.slice(0, query.limit);
+  return {
+    measurements: page.map((r) => {
+      const done = r.status === "done";
+      return {
+        id: r.id,
+        objectiveId: r.objectiveId,
+        objectiveName: r.objectiveName,
+        stackId: r.stackId,
+        fileName: r.fileName,
+        purpose: r.purpose,
+        status: r.status,
+        acquiredAt: r.acquiredAt.toISOString(),
+        createdAt: r.createdAt.toISOString(),
+        finishedAt: r.finishedAt?.toISOString() ?? null,
+        version: r.version,
+        createdByName: r.createdByName,
+        ratios:
+          done && r.ratios ? { lateral: r.ratios.lateral ?? null, axial: r.ratios.axial ?? null } : null,
+        verdict: done ? ((r.verdictLevel as VerdictLevel | null) ?? null) : null,
+      };
+    }),
+    next: rows.length > query.limit ? page.at(-1)!.cursor : null,
   };
 }
 

@@ -1,6 +1,6 @@
-import { and, count, desc, eq, inArray, sql, type SQL, type SQLWrapper } from "drizzle-orm";
+import { and, count, desc, eq, inArray, ne, or, sql, type SQL, type SQLWrapper } from "drizzle-orm";
 import type { Db, Tx } from "../client";
-import { measurements, objectives, stacks, users } from "../schema";
+import { measurements, objectives, stacks, users, type Measurement } from "../schema";
 
 type Q = Db | Tx;
 
@@ -32,31 +32,79 @@ export async function listLatestChecksByObjectives(db: Q, { objectiveIds }: { ob
 const CURSOR_RE =
   /^(\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z)_(\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z)_([0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12})$/;
 
+/** A real instant PostgreSQL accepts: no 30 February, no hour 24, no year 0. */
+function isCursorInstant(iso: string): boolean {
+  const t = Date.parse(iso);
+  return !Number.isNaN(t) && new Date(t).toISOString() === `${iso.slice(0, 23)}Z` && iso >= "0001";
+}
+
+/** The cursor's parts, or null when it is not one a measurement list gave out. */
+function parseCursor(value: string): [acquiredAt: string, createdAt: string, id: string] | null {
+  const m = CURSOR_RE.exec(value);
+  if (!m || !isCursorInstant(m[1]!) || !isCursorInstant(m[2]!)) return null;
+  return [m[1]!, m[2]!, m[3]!];
+}
+
 export function isMeasurementCursor(value: string): boolean {
-  return CURSOR_RE.test(value);
+  return parseCursor(value) !== null;
 }
 
 const utcMicros = (col: SQLWrapper) =>
   sql`to_char(${col} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.US"Z"')`;
 
+const NO_ID = "00000000-0000-0000-0000-000000000000";
+
 interface ListFilter {
   facilityId: string;
   createdBy?: string;
   objectiveIds?: string[];
+  /** Only measurements of objectives currently mounted on one of these instruments. */
+  instrumentIds?: string[];
+  /** Every non-sample measurement, but sample ones only when this user created them. */
+  samplesOf?: string;
+  purpose?: Measurement["purpose"];
+  status?: Measurement["status"];
 }
 
-function listConditions({ facilityId, createdBy, objectiveIds }: ListFilter): SQL[] {
+function listConditions({
+  facilityId,
+  createdBy,
+  objectiveIds,
+  instrumentIds,
+  samplesOf,
+  purpose,
+  status,
+}: ListFilter): SQL[] {
   const conds: SQL[] = [eq(measurements.facilityId, facilityId)];
   if (createdBy) conds.push(eq(measurements.createdBy, createdBy));
   if (objectiveIds)
+    conds.push(inArray(measurements.objectiveId, objectiveIds.length ? objectiveIds : [NO_ID]));
+  if (instrumentIds)
     conds.push(
       inArray(
         measurements.objectiveId,
-        objectiveIds.length ? objectiveIds : ["00000000-0000-0000-0000-000000000000"],
+        sql`(select ${objectives.id} from ${objectives} where ${inArray(
+          objectives.instrumentId,
+          instrumentIds.length ? instrumentIds : [NO_ID],
+        )})`,
       ),
     );
+  if (samplesOf) conds.push(or(ne(measurements.purpose, "sample"), eq(measurements.createdBy, samplesOf))!);
+  if (purpose) conds.push(eq(measurements.purpose, purpose));
+  if (status) conds.push(eq(measurements.status, status));
   return conds;
 }
+
+/** Rows strictly after the cursor's row in newest-first order; a RangeError for a bad cursor. */
+function beforeCondition(before: string): SQL {
+  const c = parseCursor(before);
+  if (!c) throw new RangeError("before: not a measurement list cursor");
+  return sql`(${measurements.acquiredAt}, ${measurements.createdAt}, ${measurements.id}) < (${c[0]}::timestamptz, ${c[1]}::timestamptz, ${c[2]}::uuid)`;
+}
+
+const cursorOf = () =>
+  sql<string>`${utcMicros(measurements.acquiredAt)} || '_' || ${utcMicros(measurements.createdAt)} || '_' || ${measurements.id}::text`;
+const newestFirst = [desc(measurements.acquiredAt), desc(measurements.createdAt), desc(measurements.id)];
 
 /**
  * One page of a facility's measurements, newest first (acquired, then created, then id), with
@@ -69,13 +117,7 @@ export async function listRecentMeasurementsByFacility(
   { limit, before, ...filter }: ListFilter & { limit: number; before?: string },
 ) {
   const conds = listConditions(filter);
-  if (before) {
-    const m = CURSOR_RE.exec(before);
-    if (!m) throw new RangeError("before: not a measurement list cursor");
-    conds.push(
-      sql`(${measurements.acquiredAt}, ${measurements.createdAt}, ${measurements.id}) < (${m[1]}::timestamptz, ${m[2]}::timestamptz, ${m[3]}::uuid)`,
-    );
-  }
+  if (before) conds.push(beforeCondition(before));
   return db
     .select({
       id: measurements.id,
@@ -86,14 +128,55 @@ export async function listRecentMeasurementsByFacility(
       objectiveName: objectives.name,
       fileName: stacks.fileName,
       createdByName: users.name,
-      cursor: sql<string>`${utcMicros(measurements.acquiredAt)} || '_' || ${utcMicros(measurements.createdAt)} || '_' || ${measurements.id}::text`,
+      cursor: cursorOf(),
     })
     .from(measurements)
     .innerJoin(objectives, eq(objectives.id, measurements.objectiveId))
     .innerJoin(stacks, eq(stacks.id, measurements.stackId))
     .leftJoin(users, eq(users.id, measurements.createdBy))
     .where(and(...conds))
-    .orderBy(desc(measurements.acquiredAt), desc(measurements.createdAt), desc(measurements.id))
+    .orderBy(...newestFirst)
+    .limit(limit);
+}
+
+/**
+ * One page of measurements for the API list: the same order, filters and cursor as
+ * `listRecentMeasurementsByFacility`, with the row's ids, version and finish time, and the
+ * headline ratios and verdict level read from `trend_summary` (~1 kB), never `summary` (~90 kB).
+ */
+export async function listMeasurementPage(
+  db: Q,
+  { limit, before, ...filter }: ListFilter & { limit: number; before?: string },
+) {
+  const conds = listConditions(filter);
+  if (before) conds.push(beforeCondition(before));
+  return db
+    .select({
+      id: measurements.id,
+      objectiveId: measurements.objectiveId,
+      objectiveName: objectives.name,
+      stackId: measurements.stackId,
+      fileName: stacks.fileName,
+      purpose: measurements.purpose,
+      status: measurements.status,
+      acquiredAt: measurements.acquiredAt,
+      createdAt: measurements.createdAt,
+      finishedAt: measurements.finishedAt,
+      version: measurements.version,
+      createdByName: users.name,
+      ratios: sql<{
+        lateral?: number | null;
+        axial?: number | null;
+      } | null>`${measurements.trendSummary} -> 'ratios'`,
+      verdictLevel: sql<string | null>`${measurements.trendSummary} #>> '{verdict,level}'`,
+      cursor: cursorOf(),
+    })
+    .from(measurements)
+    .innerJoin(objectives, eq(objectives.id, measurements.objectiveId))
+    .innerJoin(stacks, eq(stacks.id, measurements.stackId))
+    .leftJoin(users, eq(users.id, measurements.createdBy))
+    .where(and(...conds))
+    .orderBy(...newestFirst)
     .limit(limit);
 }
 
