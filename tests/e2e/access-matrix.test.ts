@@ -462,6 +462,15 @@ const ROUTES: Route[] = [
     plainFor: ["staff"], expect: ALL(404) },
 
   // --- Measurements.
+  // The list is filtered per caller (see "the measurement list shows each caller…" below): an
+  // objective the caller cannot see, or another facility's, matches nothing rather than a 404.
+  { name: "list measurements", method: "GET", path: () => "/api/v1/measurements", expect: ALL(200) },
+  { name: "list measurements of the other facility's objective", method: "GET",
+    path: (i) => `/api/v1/measurements?objectiveId=${i.otherObjective}&limit=200`, expect: ALL(200) },
+  { name: "list measurements with a cursor it did not give out", method: "GET",
+    path: () => "/api/v1/measurements?before=2024-02-30T10:00:00.000000Z_2024-03-01T10:00:00.000000Z_00000000-0000-4000-8000-000000000000",
+    expect: ALL(400) },
+  { name: "list measurements, 201 per page", method: "GET", path: () => "/api/v1/measurements?limit=201", expect: ALL(400) },
   { name: "staff's sample measurement", method: "GET", path: (i) => `/api/v1/measurements/${i.staffSample}`,
     expect: { admin: 200, staff: 200, researcher: 404, engineer: 404, "other facility": 404 } },
   { name: "researcher's sample measurement", method: "GET", path: (i) => `/api/v1/measurements/${i.researcherSample}`,
@@ -840,6 +849,59 @@ describe("access matrix over HTTP (route handlers)", () => {
       }
     });
   }
+
+  it("the measurement list shows each caller exactly the measurements they may open", async () => {
+    const rows = [
+      ["staff's sample", ids.staffSample],
+      ["researcher's sample", ids.researcherSample],
+      ["routine check", ids.routineCheck],
+      ["queued routine on the visit's lens", ids.queuedRoutineOnVisit],
+      ["queued pre-service on the visit's lens", ids.queuedServiceOnVisit],
+    ] as const;
+    const db = getDb();
+    const found = await db
+      .select({
+        id: measurements.id,
+        objectiveId: measurements.objectiveId,
+        purpose: measurements.purpose,
+        status: measurements.status,
+      })
+      .from(measurements)
+      .where(
+        inArray(
+          measurements.id,
+          rows.map(([, id]) => id),
+        ),
+      );
+    const filterOf = new Map(found.map((m) => [m.id, m]));
+    const seen: string[] = [];
+    for (const caller of ["admin", "staff", "researcher", "engineer", "other facility"] as const) {
+      for (const [label, id] of rows) {
+        const opens = (await call(caller, "GET", `/api/v1/measurements/${id}`)).status === 200;
+        // Narrowed by the row's own objective, purpose and status so a few pages reach it on a
+        // server with a long history; walked with `next` until it shows or the list ends.
+        const m = filterOf.get(id)!;
+        let url = `/api/v1/measurements?objectiveId=${m.objectiveId}&purpose=${m.purpose}&status=${m.status}&limit=200`;
+        let listed = false;
+        for (let page = 0; page < 50 && !listed; page++) {
+          const r = await call(caller, "GET", url);
+          expect(r.status, r.text.slice(0, 300)).toBe(200);
+          const body = r.json as { measurements: Array<{ id: string }>; next: string | null };
+          listed = body.measurements.some((x) => x.id === id);
+          if (!body.next) break;
+          url = `/api/v1/measurements?objectiveId=${m.objectiveId}&purpose=${m.purpose}&status=${m.status}&limit=200&before=${encodeURIComponent(body.next)}`;
+        }
+        expect(listed, `${label} as ${caller}: opens ${opens}, listed ${listed}`).toBe(opens);
+        if (listed) seen.push(`${caller}: ${label}`);
+      }
+    }
+    // The five rows sit where the roles differ, so the check above compared both answers.
+    expect(seen).toContain("researcher: researcher's sample");
+    expect(seen).not.toContain("researcher: staff's sample");
+    expect(seen).toContain("engineer: queued pre-service on the visit's lens");
+    expect(seen).not.toContain("engineer: researcher's sample");
+    expect(seen.filter((s) => s.startsWith("other facility"))).toEqual([]);
+  });
 
   it("the expired cookie is refused for its age, not its signature: the same key with time left works", async () => {
     const [staffUser] = await getDb().select().from(users).where(eq(users.email, "staff@larkspur.example"));
