@@ -76,8 +76,10 @@ export function fieldDependence(
       used.map((b) => b.lateralAsymmetry ?? Number.NaN),
     ),
     focusLayerThicknessUm,
-    plane: supported(px, py, pz, false, cxu, cyu),
-    quadratic: supported(px, py, pz, true, cxu, cyu),
+    plane:
+      px.length >= BEADS_PER_COEFFICIENT * 3 ? fitSurface(px, py, pz, false, cxu, cyu) : noSurface(px.length),
+    quadratic:
+      px.length >= BEADS_PER_COEFFICIENT * 6 ? fitSurface(px, py, pz, true, cxu, cyu) : noSurface(px.length),
   };
 }
 
@@ -90,17 +92,16 @@ export function fieldDependence(
  */
 const BEADS_PER_COEFFICIENT = 3;
 
-function supported(
-  x: number[],
-  y: number[],
-  z: number[],
-  quadratic: boolean,
-  halfW: number,
-  halfH: number,
-): FocusSurface {
-  if (x.length < BEADS_PER_COEFFICIENT * (quadratic ? 6 : 3))
-    return fitSurface([], [], [], quadratic, halfW, halfH, x.length);
-  return fitSurface(x, y, z, quadratic, halfW, halfH);
+/** A surface too few beads support: only its bead count. */
+function noSurface(n: number): FocusSurface {
+  return {
+    n,
+    coefficients: null,
+    tiltUmPerUm: null,
+    planarityPeakToValleyUm: null,
+    planarityRmsUm: null,
+    residualRmsUm: null,
+  };
 }
 
 function regionStats(b: readonly BeadResult[]): RegionStatistics {
@@ -125,19 +126,10 @@ export function fitSurface(
   quadratic: boolean,
   halfW: number,
   halfH: number,
-  /** The bead count to report when no points are passed (too few to fit). */
-  reportedN = x.length,
 ): FocusSurface {
   const n = x.length;
   const p = quadratic ? 6 : 3;
-  const empty: FocusSurface = {
-    n: reportedN,
-    coefficients: null,
-    tiltUmPerUm: null,
-    planarityPeakToValleyUm: null,
-    planarityRmsUm: null,
-    residualRmsUm: null,
-  };
+  const empty = noSurface(n);
   if (n < p + (quadratic ? 1 : 0)) return empty;
   const basis = (u: number, v: number) => (quadratic ? [1, u, v, u * u, u * v, v * v] : [1, u, v]);
   const rows = x.map((u, i) => basis(u, y[i]));
