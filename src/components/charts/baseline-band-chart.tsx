@@ -1,5 +1,5 @@
 "use client";
-import { Plot, axis, baseLayout, plotConfig } from "./plot";
+import { Plot, axis, baseLayout, flatLine, plotConfig } from "./plot";
 
 export interface BaselineBandChartProps {
   title: string;
@@ -38,17 +38,7 @@ export function BaselineBandChart({
   const beyond = new Set(band.beyond);
   const limit = band.worse === "up" ? band.upper3 : band.lower3;
   const line = (y: number | null, name: string, color: string, dash: string) =>
-    y == null || !x0 || !x1
-      ? null
-      : {
-          name,
-          x: [x0, x1],
-          y: [y, y],
-          mode: "lines",
-          type: "scatter",
-          line: { color, dash, width: 1.5 },
-          hoverinfo: "name+y",
-        };
+    flatLine(y, name, { color, dash }, x0, x1);
   const data = [
     {
       name: "checks",

@@ -48,3 +48,23 @@ export const plotConfig = {
   responsive: true,
   modeBarButtonsToRemove: ["lasso2d", "select2d"],
 } as const;
+
+/** A horizontal reference line from x0 to x1 (a limit or a centre line), or null without a value. */
+export function flatLine(
+  y: number | null,
+  name: string,
+  style: { color: string; dash: string },
+  x0: string | undefined,
+  x1: string | undefined,
+) {
+  if (y == null || !x0 || !x1) return null;
+  return {
+    name,
+    x: [x0, x1],
+    y: [y, y],
+    mode: "lines",
+    type: "scatter",
+    line: { color: style.color, dash: style.dash, width: 1.5 },
+    hoverinfo: "name+y",
+  };
+}

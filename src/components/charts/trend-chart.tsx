@@ -1,5 +1,5 @@
 "use client";
-import { Plot, axis, baseLayout, plotConfig, plotText } from "./plot";
+import { Plot, axis, baseLayout, flatLine, plotConfig, plotText } from "./plot";
 
 export interface TrendChartProps {
   title: string;
@@ -49,17 +49,7 @@ export function TrendChart({ title, points, currentEpoch, specLimit, chart, even
   const x0 = epochPts[0]?.acquiredAt ?? valid[0]?.acquiredAt;
   const x1 = valid[valid.length - 1]?.acquiredAt;
   const limitLine = (y: number | null, name: string, color: string, dash: string) =>
-    y == null || !x0 || !x1
-      ? null
-      : {
-          name,
-          x: [x0, x1],
-          y: [y, y],
-          mode: "lines",
-          type: "scatter",
-          line: { color, dash, width: 1.5 },
-          hoverinfo: "name+y",
-        };
+    flatLine(y, name, { color, dash }, x0, x1);
   const dashed = chart.provisional ? "dash" : "solid";
   const data = [
     {
