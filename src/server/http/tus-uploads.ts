@@ -15,6 +15,7 @@ import { requireApiActor } from "../auth/current-actor";
 import { registerStackFromFile, requireUploadRight } from "../services/stacks";
 import { getStorage, uploadsDir } from "../storage/get-storage";
 import { AppError, unstorableTextError } from "./errors";
+import { cutText } from "../../lib/text/cut-text";
 
 export const TUS_PATH = "/api/v1/uploads";
 const ABANDONED_AFTER_MS = 24 * 3600 * 1000;
@@ -57,7 +58,7 @@ export function getTusServer(): Server {
       try {
         const actor = await requireApiActor();
         await requireUploadRight(getDb(), actor);
-        const name = String(upload.metadata?.filename ?? "stack.tif").slice(0, 255);
+        const name = cutText(String(upload.metadata?.filename ?? "stack.tif"), 255);
         // Ownership comes from the session, never from what the client sent.
         return { metadata: { filename: name, userId: actor.userId, facilityId: actor.facilityId } };
       } catch (err) {

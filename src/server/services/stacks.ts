@@ -22,6 +22,7 @@ import {
 import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
 import { stackKey, type ObjectStorage } from "../storage/storage";
+import { cutText } from "../../lib/text/cut-text";
 import { deleteStackThumbnails } from "./stack-thumbnail-files";
 
 export function toStackDto(row: Stack, duplicate?: boolean): StackDto {
@@ -144,7 +145,7 @@ export async function registerStackFromFile(
         .values({
           facilityId: actor.facilityId,
           uploadedBy: actor.userId,
-          fileName: input.fileName.slice(0, 255),
+          fileName: cutText(input.fileName, 255),
           storageKey: key,
           sha256,
           sizeBytes: size,

@@ -5,6 +5,7 @@ import { requirePageActor } from "@/server/auth/current-actor";
 import { can } from "@/server/auth/permissions";
 import { getDb } from "@/server/db/client";
 import { auditQuerySchema, listAuditLog, type AuditPage } from "@/server/services/audit";
+import { cutText } from "@/lib/text/cut-text";
 
 export const metadata: Metadata = { title: "Audit log" };
 
@@ -12,10 +13,9 @@ function compact(value: unknown): string {
   if (value === undefined) return "—";
   const s = JSON.stringify(value);
   if (s.length <= 120) return s;
-  // Cut between characters, never inside a surrogate pair (an emoji): a lone half is written as
-  // U+FFFD in the HTML but kept in the page data, and React's hydration then fails on the text.
-  const cut = /[\uD800-\uDBFF]/.test(s[116]!) ? 116 : 117;
-  return `${s.slice(0, cut)}…`;
+  // Never inside a surrogate pair (an emoji): a lone half is written as U+FFFD in the HTML but
+  // kept in the page data, and React's hydration then fails on the text.
+  return `${cutText(s, 117)}…`;
 }
 
 /** `{ before, after }` details as "field: old → new" lines; anything else as compact JSON. */
