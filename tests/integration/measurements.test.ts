@@ -14,7 +14,7 @@ import {
   getMeasurement,
   rerunMeasurement,
 } from "@/server/services/measurements";
-import { analyzeMeasurement } from "@/worker/handlers/analyze-measurement";
+import { analysisThreads, analyzeMeasurement } from "@/worker/handlers/analyze-measurement";
 import { makeDemoBeadStack } from "../../fixtures/demo-stacks";
 import { makeFacility, outcome, type TestFacility } from "./helpers";
 
@@ -121,6 +121,55 @@ describe("a measurement from queue to result", () => {
     expect((await getDb().select().from(beadResults).where(eq(beadResults.measurementId, id))).length).toBe(
       0,
     );
+  });
+
+  it("stops the analysis thread when the measurement is cancelled mid-run, and the next job still runs", async () => {
+    // A stack large enough that the analysis reports progress several times (every 250 ms).
+    const big = makeDemoBeadStack({
+      na: 1.4,
+      immersionRi: 1.518,
+      sampleRi: 1.518,
+      emissionWavelengthNm: 520,
+      beadCount: 40,
+      shape: [160, 256, 256],
+      seed: 6,
+    });
+    const file = path.join(dir, "big.tif");
+    writeFileSync(file, big.tiff);
+    const bigStack = await registerStackFromFile(getDb(), getStorage(), f.actors.staff, {
+      filePath: file,
+      fileName: "big.tif",
+    });
+    const { id } = await createMeasurement(getDb(), f.actors.staff, {
+      ...base,
+      stackId: bigStack.id,
+      objectiveId: f.objectiveIds[0],
+    });
+    const stopped = analysisThreads.stoppedByCancel;
+    const job = analyzeMeasurement({ measurementId: id }, attempt);
+    // Cancel as soon as the analysis is past reading (the thread is busy fitting).
+    for (let i = 0; i < 600; i++) {
+      const [row] = await getDb().select().from(measurements).where(eq(measurements.id, id));
+      if (row!.status === "running" && row!.stage !== "queued" && row!.stage !== "reading") break;
+      await new Promise((r) => setTimeout(r, 20));
+    }
+    await cancelMeasurement(getDb(), f.actors.staff, id);
+    await job;
+    expect(analysisThreads.stoppedByCancel).toBe(stopped + 1);
+    const m = await getMeasurement(getDb(), f.actors.staff, id);
+    expect(m.status).toBe("cancelled");
+    expect(m.summary).toBeNull();
+    expect((await getDb().select().from(beadResults).where(eq(beadResults.measurementId, id))).length).toBe(
+      0,
+    );
+    // A new thread takes the next job.
+    const next = await createMeasurement(getDb(), f.actors.staff, {
+      ...base,
+      stackId,
+      objectiveId: f.objectiveIds[0],
+    });
+    await analyzeMeasurement({ measurementId: next.id }, attempt);
+    expect((await getMeasurement(getDb(), f.actors.staff, next.id)).status).toBe("done");
   });
 
   it("re-runs with changed parameters as a new version and keeps the old one", async () => {

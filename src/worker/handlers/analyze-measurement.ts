@@ -48,14 +48,20 @@ const KEEP_THREAD_MAX_BYTES = 64 * 1024 * 1024;
 let idleThread: Worker | null = null;
 let nextJobId = 1;
 
+/** Threads started, and threads stopped because their measurement was cancelled (for tests and logs). */
+export const analysisThreads = { started: 0, stoppedByCancel: 0 };
+
 /** The measurement was cancelled while its analysis ran; the thread was stopped. */
 class Cancelled extends Error {}
 
 function takeThread(): Worker {
   // workerData must be an object even though jobs arrive as messages: loader hooks that a
   // test runner passes on to threads read it.
-  const thread =
-    idleThread ?? new Worker(new URL("../analysis-thread-entry.mjs", import.meta.url), { workerData: {} });
+  let thread = idleThread;
+  if (!thread) {
+    thread = new Worker(new URL("../analysis-thread-entry.mjs", import.meta.url), { workerData: {} });
+    analysisThreads.started++;
+  }
   idleThread = null;
   thread.ref();
   return thread;
@@ -109,6 +115,7 @@ function runInThread(
     };
     // Cancelled mid-analysis: stop the thread rather than finish work nobody will see.
     const onAbort = () => {
+      analysisThreads.stoppedByCancel++;
       done(false);
       void thread.terminate();
       reject(new Cancelled());
