@@ -78,6 +78,32 @@ describe("service visit report", () => {
     expect(b.reason).toMatch(/3σ above the baseline/);
   });
 
+  it("says a lens nobody checked during a finished visit was not part of it, and waits during one", async () => {
+    // The checks above fall at 200, 170, 140, 110, 80, 2 and 1 days ago: none in these windows.
+    const past = await createServiceVisit(getDb(), f.actors.admin, {
+      title: "Stage service",
+      instrumentIds: f.instrumentIds,
+      startsAt: new Date(Date.now() - 100 * DAY).toISOString(),
+      endsAt: new Date(Date.now() - 95 * DAY).toISOString(),
+    });
+    const done = await getServiceVisitReport(getDb(), f.actors.admin, past.id);
+    expect(done.comparisons.map((c) => c.verdict)).toEqual([
+      "not checked in this visit",
+      "not checked in this visit",
+    ]);
+    const ongoing = await createServiceVisit(getDb(), f.actors.admin, {
+      title: "Alignment",
+      instrumentIds: f.instrumentIds,
+      startsAt: new Date(Date.now() - 3_600_000).toISOString(),
+      endsAt: new Date(Date.now() + DAY).toISOString(),
+    });
+    const open = await getServiceVisitReport(getDb(), f.actors.admin, ongoing.id);
+    expect(open.comparisons.map((c) => c.verdict)).toEqual([
+      "awaiting as-left check",
+      "awaiting as-left check",
+    ]);
+  });
+
   it("is invisible to researchers and to other engineers, and signs off once", async () => {
     const visit = await createServiceVisit(getDb(), f.actors.staff, {
       title: "Repair",

@@ -65,6 +65,7 @@ const VERDICT_COLOUR: Record<string, RGB> = {
   restored: rgb(0.1, 0.45, 0.2),
   "not restored": rgb(0.7, 0.12, 0.12),
   "awaiting as-left check": rgb(0.65, 0.42, 0.05),
+  "not checked in this visit": rgb(0.4, 0.44, 0.48),
 };
 
 const day = (d: Date | string) => (typeof d === "string" ? new Date(d) : d).toISOString().slice(0, 10);

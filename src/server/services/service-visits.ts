@@ -205,7 +205,7 @@ export interface VisitComparison {
   };
   asFound: { measurementId: string; acquiredAt: string; lateral: number | null; axial: number | null } | null;
   asLeft: { measurementId: string; acquiredAt: string; lateral: number | null; axial: number | null } | null;
-  verdict: "restored" | "not restored" | "awaiting as-left check";
+  verdict: "restored" | "not restored" | "awaiting as-left check" | "not checked in this visit";
   reason: string;
 }
 
@@ -274,6 +274,13 @@ export async function getServiceVisitReport(db: Db, actor: Actor, id: string) {
     const limits = { lateral: o.lateralRatioLimit, axial: o.axialRatioLimit };
     let verdict: VisitComparison["verdict"] = "awaiting as-left check";
     let reason = "No post-service check in the visit window yet.";
+    // A visit covers whole instruments; a lens of the instrument that nobody checked during a
+    // visit that is over or signed off was most likely not part of the work.
+    const over = visit.signedOffAt != null || end < Date.now();
+    if (over && during.length === 0) {
+      verdict = "not checked in this visit";
+      reason = "No check of this lens in the visit window; the visit probably did not concern it.";
+    }
     if (asLeft && asLeft.lateral != null && asLeft.axial != null) {
       const problems: string[] = [];
       if (asLeft.lateral >= limits.lateral)

@@ -19,6 +19,7 @@ const VERDICT_STYLE: Record<string, string> = {
   restored: "text-good",
   "not restored": "text-bad",
   "awaiting as-left check": "text-watch",
+  "not checked in this visit": "text-ink-soft",
 };
 
 export default async function ServiceVisitPage({ params }: { params: Promise<{ id: string }> }) {
