@@ -79,11 +79,12 @@ describe("service visit report", () => {
   });
 
   it("says a lens nobody checked during a finished visit was not part of it, and waits during one", async () => {
-    // The checks above fall at 200, 170, 140, 110, 80, 2 and 1 days ago: none in these windows.
+    // The checks above fall at 200, 170, 140, 110, 80, 2 and 1 days ago: none in these windows
+    // but one routine check at 110 days, which is not visit work.
     const past = await createServiceVisit(getDb(), f.actors.admin, {
       title: "Stage service",
       instrumentIds: f.instrumentIds,
-      startsAt: new Date(Date.now() - 100 * DAY).toISOString(),
+      startsAt: new Date(Date.now() - 112 * DAY).toISOString(),
       endsAt: new Date(Date.now() - 95 * DAY).toISOString(),
     });
     const done = await getServiceVisitReport(getDb(), f.actors.admin, past.id);

@@ -274,12 +274,14 @@ export async function getServiceVisitReport(db: Db, actor: Actor, id: string) {
     const limits = { lateral: o.lateralRatioLimit, axial: o.axialRatioLimit };
     let verdict: VisitComparison["verdict"] = "awaiting as-left check";
     let reason = "No post-service check in the visit window yet.";
-    // A visit covers whole instruments; a lens of the instrument that nobody checked during a
-    // visit that is over or signed off was most likely not part of the work.
+    // A visit covers whole instruments; a lens with no as-found or as-left check during a visit
+    // that is over or signed off was most likely not part of the work (routine checks that fall
+    // in the window are not visit work).
     const over = visit.signedOffAt != null || end < Date.now();
-    if (over && during.length === 0) {
+    if (over && !during.some((c) => c.purpose === "pre-service" || c.purpose === "post-service")) {
       verdict = "not checked in this visit";
-      reason = "No check of this lens in the visit window; the visit probably did not concern it.";
+      reason =
+        "No as-found or as-left check of this lens in the visit window; the visit probably did not concern it.";
     }
     if (asLeft && asLeft.lateral != null && asLeft.axial != null) {
       const problems: string[] = [];
