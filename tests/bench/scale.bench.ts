@@ -36,10 +36,7 @@ import type { Actor } from "../../src/server/auth/permissions";
 import type { Db } from "../../src/server/db/client";
 import * as schema from "../../src/server/db/schema";
 import { listEventsByObjective } from "../../src/server/db/queries/logbook";
-import {
-  countMeasurements,
-  listRecentMeasurementsByFacility,
-} from "../../src/server/db/queries/measurements";
+import { countMeasurements, listMeasurementPage } from "../../src/server/db/queries/measurements";
 import { beadsToCsv, beadsToPublicRows } from "../../src/server/services/bead-export";
 import { getDashboard } from "../../src/server/services/dashboard";
 import { seedDemoData } from "../../src/server/services/demo-data";
@@ -578,29 +575,25 @@ export async function run(): Promise<Row[]> {
       limit: OBJECTIVE_MEASUREMENTS_PAGE + 1,
     };
     timings.push(
-      await time("objective measurements, first page", () =>
-        listRecentMeasurementsByFacility(db, objectiveList),
-      ),
+      await time("objective measurements, first page", () => listMeasurementPage(db, objectiveList)),
     );
-    const objectiveDeep = (await listRecentMeasurementsByFacility(db, { ...objectiveList, limit: 1000 })).at(
-      -1,
-    )!.cursor;
+    const objectiveDeep = (await listMeasurementPage(db, { ...objectiveList, limit: 1000 })).at(-1)!.cursor;
     timings.push(
       await time("objective measurements, page 21", () =>
-        listRecentMeasurementsByFacility(db, { ...objectiveList, before: objectiveDeep }),
+        listMeasurementPage(db, { ...objectiveList, before: objectiveDeep }),
       ),
     );
     timings.push(
       await time("facility measurements, first page", () =>
-        listRecentMeasurementsByFacility(db, { facilityId: L.facilityId, limit: 50 }),
+        listMeasurementPage(db, { facilityId: L.facilityId, limit: 50 }),
       ),
     );
-    const facilityDeep = (
-      await listRecentMeasurementsByFacility(db, { facilityId: L.facilityId, limit: 9000 })
-    ).at(-1)!.cursor;
+    const facilityDeep = (await listMeasurementPage(db, { facilityId: L.facilityId, limit: 9000 })).at(
+      -1,
+    )!.cursor;
     timings.push(
       await time("facility measurements, page 181", () =>
-        listRecentMeasurementsByFacility(db, { facilityId: L.facilityId, limit: 50, before: facilityDeep }),
+        listMeasurementPage(db, { facilityId: L.facilityId, limit: 50, before: facilityDeep }),
       ),
     );
     timings.push(

@@ -7,7 +7,7 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/server/db/client";
 import { beadResults, measurements } from "@/server/db/schema";
-import { listRecentMeasurementsByFacility } from "@/server/db/queries/measurements";
+import { listMeasurementPage } from "@/server/db/queries/measurements";
 import { getDashboard } from "@/server/services/dashboard";
 import { getObjectiveTrend } from "@/server/services/logbook";
 import { listBeads } from "@/server/services/measurements";
@@ -81,7 +81,7 @@ describe("measurement lists", () => {
     const times: number[] = [];
     let before: string | undefined;
     for (let page = 0; page < 20; page++) {
-      const rows = await listRecentMeasurementsByFacility(getDb(), {
+      const rows = await listMeasurementPage(getDb(), {
         facilityId: f.facilityId,
         limit: 17,
         before,
@@ -98,7 +98,7 @@ describe("measurement lists", () => {
 
   it("rejects a cursor it did not make", async () => {
     await expect(
-      listRecentMeasurementsByFacility(getDb(), { facilityId: f.facilityId, limit: 5, before: "1; drop" }),
+      listMeasurementPage(getDb(), { facilityId: f.facilityId, limit: 5, before: "1; drop" }),
     ).rejects.toThrow(RangeError);
   });
 

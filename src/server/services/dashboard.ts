@@ -2,7 +2,7 @@
 import type { ObjectiveStatusResult } from "../../lib/qc";
 import type { Db } from "../db/client";
 import { listInstrumentsByFacility } from "../db/queries/instruments";
-import { listRecentMeasurementsByFacility } from "../db/queries/measurements";
+import { listMeasurementPage } from "../db/queries/measurements";
 import type { Actor } from "../auth/permissions";
 import { listObjectives, visibleInstrumentIds } from "./instruments";
 import { getTrends } from "./logbook";
@@ -29,7 +29,7 @@ export async function getDashboard(db: Db, actor: Actor, now = new Date()) {
   // Researchers see only their own recent measurements; engineers only their instruments'.
   const [trends, recent] = await Promise.all([
     getTrends(db, active, now, { ratiosOnly: true }),
-    listRecentMeasurementsByFacility(db, {
+    listMeasurementPage(db, {
       facilityId: actor.facilityId,
       limit: 10,
       createdBy: actor.role === "researcher" ? actor.userId : undefined,

@@ -1,9 +1,5 @@
 import type { Db } from "../db/client";
-import {
-  countMeasurements,
-  isMeasurementCursor,
-  listRecentMeasurementsByFacility,
-} from "../db/queries/measurements";
+import { countMeasurements, isMeasurementCursor, listMeasurementPage } from "../db/queries/measurements";
 import type { Actor } from "../auth/permissions";
 import { getObjective } from "./instruments";
 import { getObjectiveTrend } from "./logbook";
@@ -30,7 +26,7 @@ export async function getObjectiveOverview(
   };
   const [trend, rows, measurementCount] = await Promise.all([
     getObjectiveTrend(db, actor, id, now),
-    listRecentMeasurementsByFacility(db, {
+    listMeasurementPage(db, {
       ...filter,
       limit: OBJECTIVE_MEASUREMENTS_PAGE + 1,
       before: before && isMeasurementCursor(before) ? before : undefined,

@@ -108,41 +108,10 @@ const newestFirst = [desc(measurements.acquiredAt), desc(measurements.createdAt)
 
 /**
  * One page of a facility's measurements, newest first (acquired, then created, then id), with
- * the objective, stack file and author names. `before` is the `cursor` of the last row of the
- * previous page (keyset pagination: a deep page costs what the first one does); an invalid
- * cursor throws a RangeError.
- */
-export async function listRecentMeasurementsByFacility(
-  db: Q,
-  { limit, before, ...filter }: ListFilter & { limit: number; before?: string },
-) {
-  const conds = listConditions(filter);
-  if (before) conds.push(beforeCondition(before));
-  return db
-    .select({
-      id: measurements.id,
-      purpose: measurements.purpose,
-      status: measurements.status,
-      acquiredAt: measurements.acquiredAt,
-      createdAt: measurements.createdAt,
-      objectiveName: objectives.name,
-      fileName: stacks.fileName,
-      createdByName: users.name,
-      cursor: cursorOf(),
-    })
-    .from(measurements)
-    .innerJoin(objectives, eq(objectives.id, measurements.objectiveId))
-    .innerJoin(stacks, eq(stacks.id, measurements.stackId))
-    .leftJoin(users, eq(users.id, measurements.createdBy))
-    .where(and(...conds))
-    .orderBy(...newestFirst)
-    .limit(limit);
-}
-
-/**
- * One page of measurements for the API list: the same order, filters and cursor as
- * `listRecentMeasurementsByFacility`, with the row's ids, version and finish time, and the
- * headline ratios and verdict level read from `trend_summary` (~1 kB), never `summary` (~90 kB).
+ * the objective, stack file and author names, and the headline ratios and verdict level read
+ * from `trend_summary` (~1 kB), never `summary` (~90 kB). `before` is the `cursor` of the last
+ * row of the previous page (keyset pagination: a deep page costs what the first one does); an
+ * invalid cursor throws a RangeError. Serves the dashboard, the objective page and the API list.
  */
 export async function listMeasurementPage(
   db: Q,
