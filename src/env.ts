@@ -57,3 +57,8 @@ export function getEnv(): Env {
   }
   return cached;
 }
+
+/** An absolute link into the app for mails and reports: APP_URL (without trailing slashes) + path. */
+export function appUrl(path: string): string {
+  return `${getEnv().APP_URL.replace(/\/+$/, "")}${path}`;
+}

@@ -12,10 +12,9 @@ import type { Db } from "../db/client";
 import { auditLog, facilities, instruments, measurements, objectives } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { listMailRecipients } from "../db/queries/users";
-import { sendMail, type MailResult } from "../mail/mailer";
-import { outOfSpecAlertMail, withUnsubscribeLink } from "../mail/templates";
-import { MAIL_KIND_WORDS, unsubscribeHeaders, unsubscribeLink } from "./mail-preferences";
-import { getEnv } from "../../env";
+import { outOfSpecAlertMail } from "../mail/templates";
+import { sendToEachWithUnsubscribe } from "./mail-preferences";
+import { appUrl } from "../../env";
 
 export const ALERT_ACTION = "alert.sent";
 
@@ -85,18 +84,9 @@ export async function sendOutOfSpecAlert(db: Db, measurementId: string): Promise
       acquiredAt: row.acquiredAt,
       headline: verdict.headline ?? "Out of spec.",
       evidence: verdict.evidence ?? [],
-      measurementUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/measurements/${row.id}`,
+      measurementUrl: appUrl(`/measurements/${row.id}`),
     });
-    // One message per person: each carries that person's own unsubscribe link.
-    let sent: MailResult | undefined;
-    for (const p of people) {
-      const link = unsubscribeLink(p.userId, row.facilityId, "alerts");
-      sent = await sendMail({
-        to: p.email,
-        ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS.alerts }),
-        headers: unsubscribeHeaders(link),
-      });
-    }
+    const sent = await sendToEachWithUnsubscribe(people, row.facilityId, "alerts", mail);
     await insertAuditEntry(tx, {
       facilityId: row.facilityId,
       userId: null,

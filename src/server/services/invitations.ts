@@ -15,7 +15,7 @@ import { requirePermission, type Actor } from "../auth/permissions";
 import { AppError, notFound } from "../http/errors";
 import { mailDelivery, sendMail, type MailDelivery, type MailResult } from "../mail/mailer";
 import { invitationMail } from "../mail/templates";
-import { getEnv } from "../../env";
+import { appUrl } from "../../env";
 import {
   invitationTokenSchema,
   type AcceptInvitation,
@@ -41,7 +41,7 @@ export function getMailDelivery(actor: Actor): MailDelivery {
 
 /** The public link of an invitation. */
 export function invitationLink(token: string): string {
-  return `${getEnv().APP_URL.replace(/\/+$/, "")}/invite/${token}`;
+  return appUrl(`/invite/${token}`);
 }
 
 async function isMember(db: Db | Tx, facilityId: string, email: string): Promise<boolean> {

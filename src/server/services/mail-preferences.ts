@@ -13,7 +13,9 @@ import { facilities, mailPreferences, memberships } from "../db/schema";
 import { insertAuditEntry } from "../db/queries/audit";
 import { requirePermission, type Actor } from "../auth/permissions";
 import { notFound } from "../http/errors";
-import { getEnv } from "../../env";
+import { appUrl, getEnv } from "../../env";
+import { sendMail, type MailResult } from "../mail/mailer";
+import { withUnsubscribeLink, type RenderedMail } from "../mail/templates";
 
 export const MAIL_KINDS = ["reminders", "alerts", "weekly_digest"] as const;
 export type MailKind = (typeof MAIL_KINDS)[number];
@@ -54,12 +56,34 @@ export function unsubscribeToken(userId: string, facilityId: string, kind: MailK
 }
 
 export function unsubscribeLink(userId: string, facilityId: string, kind: MailKind): string {
-  return `${getEnv().APP_URL.replace(/\/+$/, "")}/unsubscribe/${unsubscribeToken(userId, facilityId, kind)}`;
+  return appUrl(`/unsubscribe/${unsubscribeToken(userId, facilityId, kind)}`);
 }
 
 /** Extra headers for a mail with an unsubscribe link (RFC 2369). */
 export function unsubscribeHeaders(link: string): Record<string, string> {
   return { "List-Unsubscribe": `<${link}>` };
+}
+
+/**
+ * Send one automatic mail to each person, one message each: every copy carries that person's
+ * own unsubscribe link (body and List-Unsubscribe header). Returns the last send's result.
+ */
+export async function sendToEachWithUnsubscribe(
+  people: ReadonlyArray<{ userId: string; email: string }>,
+  facilityId: string,
+  kind: MailKind,
+  mail: RenderedMail,
+): Promise<MailResult | undefined> {
+  let sent: MailResult | undefined;
+  for (const p of people) {
+    const link = unsubscribeLink(p.userId, facilityId, kind);
+    sent = await sendMail({
+      to: p.email,
+      ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS[kind] }),
+      headers: unsubscribeHeaders(link),
+    });
+  }
+  return sent;
 }
 
 /** The person, facility and kind a token stands for, or null when it is malformed or forged. */

@@ -16,7 +16,7 @@ import { getUserByEmail } from "../db/queries/users";
 import { AppError, notFound } from "../http/errors";
 import { sendMail } from "../mail/mailer";
 import { passwordResetMail } from "../mail/templates";
-import { getEnv } from "../../env";
+import { appUrl } from "../../env";
 import { hashToken } from "./actor";
 import { checkPasswordPolicy, hashPassword } from "./sign-in";
 
@@ -39,7 +39,7 @@ export const resetPasswordSchema = z.object({
 
 /** The public link of a reset. */
 export function passwordResetLink(token: string): string {
-  return `${getEnv().APP_URL.replace(/\/+$/, "")}/reset-password/${token}`;
+  return appUrl(`/reset-password/${token}`);
 }
 
 /**

@@ -16,10 +16,9 @@ import { insertAuditEntry } from "../db/queries/audit";
 import { listInstrumentsByFacility, listObjectivesByFacility } from "../db/queries/instruments";
 import { requirePermission, type Actor } from "../auth/permissions";
 import { listMailRecipients } from "../db/queries/users";
-import { sendMail, type MailResult } from "../mail/mailer";
-import { reminderDigestMail, withUnsubscribeLink } from "../mail/templates";
-import { MAIL_KIND_WORDS, unsubscribeHeaders, unsubscribeLink } from "./mail-preferences";
-import { getEnv } from "../../env";
+import { reminderDigestMail } from "../mail/templates";
+import { sendToEachWithUnsubscribe } from "./mail-preferences";
+import { appUrl } from "../../env";
 import { getTrends } from "./logbook";
 
 export const REMINDER_ACTION = "reminder.sent";
@@ -118,19 +117,10 @@ export async function sendFacilityReminder(
     const mail = reminderDigestMail({
       facilityName: facility.name,
       reminders,
-      dashboardUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/dashboard`,
+      dashboardUrl: appUrl(`/dashboard`),
       day,
     });
-    // One message per person: each carries that person's own unsubscribe link.
-    let sent: MailResult | undefined;
-    for (const p of people) {
-      const link = unsubscribeLink(p.userId, facility.id, "reminders");
-      sent = await sendMail({
-        to: p.email,
-        ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS.reminders }),
-        headers: unsubscribeHeaders(link),
-      });
-    }
+    const sent = await sendToEachWithUnsubscribe(people, facility.id, "reminders", mail);
     await insertAuditEntry(tx, {
       facilityId: facility.id,
       userId: null,

@@ -19,7 +19,7 @@ import { sendMail } from "../mail/mailer";
 import { serviceVisitMail, serviceVisitReportMail } from "../mail/templates";
 import { listPeopleByFacility } from "../db/queries/users";
 import { renderServiceVisitPdf, serviceVisitPdfFileName } from "../reports/service-visit-pdf";
-import { getEnv } from "../../env";
+import { appUrl } from "../../env";
 import { inviteUser } from "./invitations";
 import { buildTrend } from "./logbook";
 
@@ -160,7 +160,7 @@ export async function createServiceVisit(db: Db, actor: Actor, input: CreateServ
         startsAt: planned.visit.startsAt,
         endsAt: planned.visit.endsAt,
         instrumentNames: planned.instrumentNames,
-        visitUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/service-visits/${planned.visit.id}`,
+        visitUrl: appUrl(`/service-visits/${planned.visit.id}`),
       });
       await sendMail({ to: planned.engineerEmail, ...mail });
       engineerNotice = "mailed";
@@ -421,7 +421,7 @@ export async function emailServiceVisitReport(db: Db, actor: Actor, id: string, 
     signedOffAt: visit.signedOffAt,
     verdicts: report.comparisons.map((c) => ({ objectiveName: c.objectiveName, verdict: c.verdict })),
     fileName,
-    visitUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/service-visits/${visit.id}`,
+    visitUrl: appUrl(`/service-visits/${visit.id}`),
   });
   try {
     await sendMail({

@@ -16,11 +16,10 @@ import { insertAuditEntry } from "../db/queries/audit";
 import { listInstrumentsByFacility, listObjectivesByFacility } from "../db/queries/instruments";
 import { listChecksByObjective, listEventsByObjective } from "../db/queries/logbook";
 import { listMailRecipients } from "../db/queries/users";
-import { sendMail, type MailResult } from "../mail/mailer";
-import { weeklyDigestMail, withUnsubscribeLink } from "../mail/templates";
-import { getEnv } from "../../env";
+import { weeklyDigestMail } from "../mail/templates";
+import { appUrl } from "../../env";
 import { buildTrend } from "./logbook";
-import { MAIL_KIND_WORDS, unsubscribeHeaders, unsubscribeLink } from "./mail-preferences";
+import { sendToEachWithUnsubscribe } from "./mail-preferences";
 import { buildFacilityReminders } from "./reminders";
 
 export const WEEKLY_DIGEST_ACTION = "weekly_digest.sent";
@@ -147,17 +146,9 @@ export async function sendFacilityWeeklyDigest(
       week,
       sections: digest.sections,
       headline: digest.headline,
-      dashboardUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}/dashboard`,
+      dashboardUrl: appUrl(`/dashboard`),
     });
-    let sent: MailResult | undefined;
-    for (const p of people) {
-      const link = unsubscribeLink(p.userId, facility.id, "weekly_digest");
-      sent = await sendMail({
-        to: p.email,
-        ...withUnsubscribeLink(mail, { link, what: MAIL_KIND_WORDS.weekly_digest }),
-        headers: unsubscribeHeaders(link),
-      });
-    }
+    const sent = await sendToEachWithUnsubscribe(people, facility.id, "weekly_digest", mail);
     await insertAuditEntry(tx, {
       facilityId: facility.id,
       userId: null,
