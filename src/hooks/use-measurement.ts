@@ -1,5 +1,7 @@
 "use client";
 import { useQuery } from "@tanstack/react-query";
+import type { RobustTrend } from "@/lib/psf/analysis-types";
+import type { ChannelCoregistration } from "@/lib/psf/run-measurement-pipeline";
 
 export const measurementKeys = {
   one: (id: string) => ["measurement", id] as const,
@@ -112,40 +114,11 @@ export interface MeasurementSummary {
   coregistration?: ChannelCoregistrationView[] | null;
 }
 
-export interface TrendView {
-  n: number;
-  slope: number | null;
-  slopeLow: number | null;
-  slopeHigh: number | null;
-}
+/** A Theil–Sen trend as stored (see `RobustTrend` in lib/psf). */
+export type TrendView = RobustTrend;
 
-/** One channel pair as stored by `buildSummary` (see `ChannelCoregistration` in lib/psf); µm. */
-export interface ChannelCoregistrationView {
-  referenceChannel: number;
-  testChannel: number;
-  testEmissionWavelengthNm: number;
-  testWavelengthSource: "file" | "measurement";
-  resolutionUm: { lateral: number; axial: number };
-  toleranceUm: number;
-  referenceBeads: number;
-  testBeads: number;
-  pairCount: number;
-  unmatchedReference: number;
-  unmatchedTest: number;
-  medianLateralUm: number | null;
-  medianAxialUm: number | null;
-  medianDxUm: number | null;
-  medianDyUm: number | null;
-  medianDzUm: number | null;
-  lateralRatio: number | null;
-  axialRatio: number | null;
-  lateralVsDepth: TrendView;
-  axialVsDepth: TrendView;
-  dzVsDepth: TrendView;
-  pairs: Array<{ dxUm: number; dyUm: number; dzUm: number; depthUm: number }>;
-  pairsTruncated: boolean;
-  reason: string | null;
-}
+/** One channel pair as stored by `buildSummary` (the engine's own type; µm). */
+export type ChannelCoregistrationView = ChannelCoregistration;
 
 export interface RegionStats {
   count: number;
