@@ -5,6 +5,7 @@ import { redirect } from "next/navigation";
 import { getDb } from "@/server/db/client";
 import { clientKey, hitRateLimit } from "@/server/http/rate-limit";
 import { requestPasswordReset, requestResetSchema } from "@/server/services/password-reset";
+import { PublicCard } from "@/components/public-card";
 
 export const metadata: Metadata = { title: "Forgot your password?" };
 
@@ -49,52 +50,46 @@ export default async function ForgotPasswordPage({
   // Own keys only: "?notice=constructor" must not reach Object.prototype.
   const notice = key && Object.hasOwn(NOTICES, key) ? NOTICES[key] : undefined;
   return (
-    <main className="flex min-h-screen items-center justify-center px-4">
-      <section className="w-full max-w-md rounded-xl border border-paper-line bg-paper-card p-8 shadow-sm">
-        <div className="mb-6 flex items-center gap-2">
-          <img src="/icon.svg" alt="" width={24} height={24} />
-          <span className="font-semibold">Beadbench</span>
+    <PublicCard>
+      <h1>Forgot your password?</h1>
+      <p className="mb-6 mt-1 text-sm text-ink-soft">
+        Enter the e-mail address of your account. We send a link to choose a new password.
+      </p>
+      {notice ? (
+        <p
+          role={notice.tone === "ok" ? "status" : "alert"}
+          data-testid="forgot-password-notice"
+          className={
+            notice.tone === "ok"
+              ? "mb-4 rounded-md bg-accent-soft/60 px-3 py-2 text-sm text-accent-strong"
+              : "mb-4 rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad"
+          }
+        >
+          {notice.text}
+        </p>
+      ) : null}
+      <form action={requestResetAction} className="space-y-4" data-testid="forgot-password-form">
+        <div>
+          <label className="label" htmlFor="reset-email">
+            E-mail
+          </label>
+          <input
+            id="reset-email"
+            name="email"
+            type="email"
+            required
+            maxLength={254}
+            autoComplete="username"
+            className="field"
+          />
         </div>
-        <h1>Forgot your password?</h1>
-        <p className="mb-6 mt-1 text-sm text-ink-soft">
-          Enter the e-mail address of your account. We send a link to choose a new password.
-        </p>
-        {notice ? (
-          <p
-            role={notice.tone === "ok" ? "status" : "alert"}
-            data-testid="forgot-password-notice"
-            className={
-              notice.tone === "ok"
-                ? "mb-4 rounded-md bg-accent-soft/60 px-3 py-2 text-sm text-accent-strong"
-                : "mb-4 rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad"
-            }
-          >
-            {notice.text}
-          </p>
-        ) : null}
-        <form action={requestResetAction} className="space-y-4" data-testid="forgot-password-form">
-          <div>
-            <label className="label" htmlFor="reset-email">
-              E-mail
-            </label>
-            <input
-              id="reset-email"
-              name="email"
-              type="email"
-              required
-              maxLength={254}
-              autoComplete="username"
-              className="field"
-            />
-          </div>
-          <button type="submit" className="btn w-full justify-center">
-            Send the link
-          </button>
-        </form>
-        <p className="mt-6 text-sm">
-          <Link href="/sign-in">Back to sign-in</Link>
-        </p>
-      </section>
-    </main>
+        <button type="submit" className="btn w-full justify-center">
+          Send the link
+        </button>
+      </form>
+      <p className="mt-6 text-sm">
+        <Link href="/sign-in">Back to sign-in</Link>
+      </p>
+    </PublicCard>
   );
 }

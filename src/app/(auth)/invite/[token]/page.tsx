@@ -5,6 +5,7 @@ import { AppError } from "@/server/http/errors";
 import { getInvitation } from "@/server/services/invitations";
 import type { InvitationPreview } from "@/contracts/invitations";
 import { AcceptForm } from "./accept-form";
+import { PublicCard } from "@/components/public-card";
 
 export const metadata: Metadata = { title: "Invitation", referrer: "no-referrer" };
 
@@ -29,33 +30,27 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
         : err.message;
   }
   return (
-    <main className="flex min-h-screen items-center justify-center px-4">
-      <section className="w-full max-w-md rounded-xl border border-paper-line bg-paper-card p-8 shadow-sm">
-        <div className="mb-6 flex items-center gap-2">
-          <img src="/icon.svg" alt="" width={24} height={24} />
-          <span className="font-semibold">Beadbench</span>
-        </div>
-        {invitation ? (
-          <>
-            <h1>Join {invitation.facilityName}</h1>
-            <p className="mb-6 mt-1 text-sm text-ink-soft">
-              You have been invited as {ROLE_WORDS[invitation.role] ?? invitation.role}. The link works until{" "}
-              <span className="font-mono">{invitation.expiresAt.toISOString().slice(0, 10)}</span>.
-            </p>
-            <AcceptForm token={token} email={invitation.email} hasAccount={invitation.hasAccount} />
-          </>
-        ) : (
-          <>
-            <h1>Invitation not usable</h1>
-            <p role="alert" className="mt-3 text-sm">
-              {problem}
-            </p>
-            <p className="mt-6 text-sm">
-              <Link href="/sign-in">Go to sign-in</Link>
-            </p>
-          </>
-        )}
-      </section>
-    </main>
+    <PublicCard>
+      {invitation ? (
+        <>
+          <h1>Join {invitation.facilityName}</h1>
+          <p className="mb-6 mt-1 text-sm text-ink-soft">
+            You have been invited as {ROLE_WORDS[invitation.role] ?? invitation.role}. The link works until{" "}
+            <span className="font-mono">{invitation.expiresAt.toISOString().slice(0, 10)}</span>.
+          </p>
+          <AcceptForm token={token} email={invitation.email} hasAccount={invitation.hasAccount} />
+        </>
+      ) : (
+        <>
+          <h1>Invitation not usable</h1>
+          <p role="alert" className="mt-3 text-sm">
+            {problem}
+          </p>
+          <p className="mt-6 text-sm">
+            <Link href="/sign-in">Go to sign-in</Link>
+          </p>
+        </>
+      )}
+    </PublicCard>
   );
 }

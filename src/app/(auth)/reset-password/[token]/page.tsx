@@ -5,6 +5,7 @@ import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
 import { getPasswordReset, resetPassword, resetTokenSchema } from "@/server/services/password-reset";
 import { checkPasswordPolicy } from "@/server/services/sign-in";
+import { PublicCard } from "@/components/public-card";
 
 export const metadata: Metadata = { title: "Choose a new password", referrer: "no-referrer" };
 
@@ -72,76 +73,70 @@ export default async function ResetPasswordPage({
         : err.message;
   }
   return (
-    <main className="flex min-h-screen items-center justify-center px-4">
-      <section className="w-full max-w-md rounded-xl border border-paper-line bg-paper-card p-8 shadow-sm">
-        <div className="mb-6 flex items-center gap-2">
-          <img src="/icon.svg" alt="" width={24} height={24} />
-          <span className="font-semibold">Beadbench</span>
-        </div>
-        {email ? (
-          <>
-            <h1>Choose a new password</h1>
-            <p className="mb-6 mt-1 text-sm text-ink-soft">
-              For <span className="font-mono">{email}</span>. Signing in afterwards uses the new password; a
-              lock-out after failed attempts is lifted.
-            </p>
-            <form action={resetPasswordAction} className="space-y-4" data-testid="reset-password-form">
-              <input type="hidden" name="token" value={token} />
-              <input type="hidden" name="username" value={email} autoComplete="username" />
-              <div>
-                <label className="label" htmlFor="reset-password">
-                  New password (at least 12 characters)
-                </label>
-                <input
-                  id="reset-password"
-                  name="password"
-                  type="password"
-                  required
-                  minLength={12}
-                  maxLength={128}
-                  autoComplete="new-password"
-                  className="field"
-                />
-              </div>
-              <div>
-                <label className="label" htmlFor="reset-confirm">
-                  New password again
-                </label>
-                <input
-                  id="reset-confirm"
-                  name="confirm"
-                  type="password"
-                  required
-                  autoComplete="new-password"
-                  className="field"
-                />
-              </div>
-              {problem ? (
-                <p
-                  role="alert"
-                  data-testid="reset-error"
-                  className="rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad"
-                >
-                  {problem}
-                </p>
-              ) : null}
-              <button type="submit" className="btn w-full justify-center">
-                Save the new password
-              </button>
-            </form>
-          </>
-        ) : (
-          <>
-            <h1>Link not usable</h1>
-            <p role="alert" className="mt-3 text-sm">
-              {unusable}
-            </p>
-            <p className="mt-6 text-sm">
-              <Link href="/forgot-password">Ask for a new link</Link> · <Link href="/sign-in">Sign in</Link>
-            </p>
-          </>
-        )}
-      </section>
-    </main>
+    <PublicCard>
+      {email ? (
+        <>
+          <h1>Choose a new password</h1>
+          <p className="mb-6 mt-1 text-sm text-ink-soft">
+            For <span className="font-mono">{email}</span>. Signing in afterwards uses the new password; a
+            lock-out after failed attempts is lifted.
+          </p>
+          <form action={resetPasswordAction} className="space-y-4" data-testid="reset-password-form">
+            <input type="hidden" name="token" value={token} />
+            <input type="hidden" name="username" value={email} autoComplete="username" />
+            <div>
+              <label className="label" htmlFor="reset-password">
+                New password (at least 12 characters)
+              </label>
+              <input
+                id="reset-password"
+                name="password"
+                type="password"
+                required
+                minLength={12}
+                maxLength={128}
+                autoComplete="new-password"
+                className="field"
+              />
+            </div>
+            <div>
+              <label className="label" htmlFor="reset-confirm">
+                New password again
+              </label>
+              <input
+                id="reset-confirm"
+                name="confirm"
+                type="password"
+                required
+                autoComplete="new-password"
+                className="field"
+              />
+            </div>
+            {problem ? (
+              <p
+                role="alert"
+                data-testid="reset-error"
+                className="rounded-md border border-bad/30 bg-bad/5 px-3 py-2 text-sm text-bad"
+              >
+                {problem}
+              </p>
+            ) : null}
+            <button type="submit" className="btn w-full justify-center">
+              Save the new password
+            </button>
+          </form>
+        </>
+      ) : (
+        <>
+          <h1>Link not usable</h1>
+          <p role="alert" className="mt-3 text-sm">
+            {unusable}
+          </p>
+          <p className="mt-6 text-sm">
+            <Link href="/forgot-password">Ask for a new link</Link> · <Link href="/sign-in">Sign in</Link>
+          </p>
+        </>
+      )}
+    </PublicCard>
   );
 }

@@ -4,6 +4,7 @@ import { redirect } from "next/navigation";
 import { getDb } from "@/server/db/client";
 import { AppError } from "@/server/http/errors";
 import { applyUnsubscribeToken, MAIL_KIND_WORDS } from "@/server/services/mail-preferences";
+import { PublicCard } from "@/components/public-card";
 
 export const metadata: Metadata = { title: "Unsubscribe", referrer: "no-referrer" };
 
@@ -40,49 +41,42 @@ export default async function UnsubscribePage({
     if (!(err instanceof AppError)) throw err;
   }
   return (
-    <main className="flex min-h-screen items-center justify-center px-4">
-      <section className="w-full max-w-md rounded-xl border border-paper-line bg-paper-card p-8 shadow-sm">
-        <div className="mb-6 flex items-center gap-2">
-          <img src="/icon.svg" alt="" width={24} height={24} />
-          <span className="font-semibold">Beadbench</span>
-        </div>
-        {!result ? (
-          <>
-            <h1>Link not usable</h1>
-            <p role="alert" className="mt-3 text-sm" data-testid="unsubscribe-invalid">
-              This unsubscribe link is not valid. You can choose which e-mails you get under Settings →
-              E-mail.
-            </p>
-            <p className="mt-6 text-sm">
-              <Link href="/settings">Settings</Link>
-            </p>
-          </>
-        ) : result.on ? (
-          <>
-            <h1>Switched back on</h1>
-            <p className="mt-3 text-sm" data-testid="unsubscribe-done">
-              You will get {MAIL_KIND_WORDS[result.kind]} from {result.facilityName} again.
-            </p>
-            <p className="mt-6 text-sm">
-              <Link href={`/unsubscribe/${encodeURIComponent(token)}`}>Unsubscribe again</Link>
-            </p>
-          </>
-        ) : (
-          <>
-            <h1>Unsubscribed</h1>
-            <p className="mt-3 text-sm" data-testid="unsubscribe-done">
-              You will no longer get {MAIL_KIND_WORDS[result.kind]} from {result.facilityName}. Other e-mails
-              are not affected; you can change this any time under Settings → E-mail.
-            </p>
-            <form action={resubscribeAction} className="mt-6">
-              <input type="hidden" name="token" value={token} />
-              <button type="submit" className="btn-quiet">
-                Undo: keep getting them
-              </button>
-            </form>
-          </>
-        )}
-      </section>
-    </main>
+    <PublicCard>
+      {!result ? (
+        <>
+          <h1>Link not usable</h1>
+          <p role="alert" className="mt-3 text-sm" data-testid="unsubscribe-invalid">
+            This unsubscribe link is not valid. You can choose which e-mails you get under Settings → E-mail.
+          </p>
+          <p className="mt-6 text-sm">
+            <Link href="/settings">Settings</Link>
+          </p>
+        </>
+      ) : result.on ? (
+        <>
+          <h1>Switched back on</h1>
+          <p className="mt-3 text-sm" data-testid="unsubscribe-done">
+            You will get {MAIL_KIND_WORDS[result.kind]} from {result.facilityName} again.
+          </p>
+          <p className="mt-6 text-sm">
+            <Link href={`/unsubscribe/${encodeURIComponent(token)}`}>Unsubscribe again</Link>
+          </p>
+        </>
+      ) : (
+        <>
+          <h1>Unsubscribed</h1>
+          <p className="mt-3 text-sm" data-testid="unsubscribe-done">
+            You will no longer get {MAIL_KIND_WORDS[result.kind]} from {result.facilityName}. Other e-mails
+            are not affected; you can change this any time under Settings → E-mail.
+          </p>
+          <form action={resubscribeAction} className="mt-6">
+            <input type="hidden" name="token" value={token} />
+            <button type="submit" className="btn-quiet">
+              Undo: keep getting them
+            </button>
+          </form>
+        </>
+      )}
+    </PublicCard>
   );
 }
